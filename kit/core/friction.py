@@ -1,0 +1,171 @@
+"""Darcy friction factor over arrays of Reynolds number, with a stated transition policy.
+
+Regimes
+-------
+- ``Re < RE_LAMINAR`` (2000): laminar, Hagen–Poiseuille ``f = 64/Re``.
+- ``Re > RE_TURBULENT`` (4000): Colebrook (1939), solved exactly by Clamond's (2009)
+  algorithm — two Newton-like iterations on the Lambert-W form, accurate to machine precision.
+- In between: **linear blend in Re** between ``64/2000`` and the Colebrook value at
+  Re = 4000 for the same relative roughness. The blend is continuous, so head loss stays a
+  continuous, increasing function of flow and a root finder on a system curve cannot be
+  trapped by a step (fluids' ``friction_factor`` jumps ×1.57 at Re = 2040). Flow in this
+  zone is unpredictable in practice (it may be laminar or turbulent); the blend is a
+  bookkeeping choice, not physics, and :func:`transition_findings` reports every such flow.
+
+Example
+-------
+>>> import numpy as np
+>>> f = darcy_friction(np.array([1000.0, 1e5]), 1e-4)
+>>> [round(x, 5) for x in f]
+[0.064, 0.01851]
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from kit.core.findings import Finding, Severity
+
+__all__ = [
+    "RE_LAMINAR", "RE_TURBULENT", "darcy_friction", "colebrook_clamond", "regime",
+    "transition_findings", "FRICTION_METHOD",
+]
+
+RE_LAMINAR = 2000.0
+RE_TURBULENT = 4000.0
+
+#: The method statement shown in findings and the record.
+FRICTION_METHOD = {
+    "name": "Darcy–Weisbach; Colebrook (Clamond 2009 exact solution) for Re > 4000; "
+            "64/Re for Re < 2000; linear blend in Re between",
+    "references": [
+        "Colebrook, C. F. (1939). Turbulent flow in pipes. J. Inst. Civil Eng. 11(4), 133–156.",
+        "Clamond, D. (2009). Efficient resolution of the Colebrook equation. Ind. Eng. Chem. "
+        "Res. 48(7), 3665–3671. doi:10.1021/ie801626g",
+    ],
+    "valid": {"Re": (0.0, 1e8), "rel_roughness": (0.0, 0.05)},
+}
+
+_LN10_18574 = 0.1239681863354175460160858261654858382699   # ln(10)/18.574
+_LN_LN10_502 = 0.7793974884556819406441139701653776731705  # ln(ln(10)/5.02)
+_HALF_LN10_SQ = 1.325474527619599502640416597148504422899  # (ln(10)/2)**2
+
+
+def colebrook_clamond(Re, rel_roughness):
+    """Colebrook (1939) friction factor by Clamond's (2009) exact algorithm.
+
+    .. math:: \\frac{1}{\\sqrt f} = -2\\log_{10}\\left(\\frac{\\epsilon/D}{3.7}
+              + \\frac{2.51}{Re\\sqrt f}\\right)
+
+    Parameters
+    ----------
+    Re : array_like
+        Reynolds number, > 0 [-]
+    rel_roughness : array_like
+        Relative roughness ε/D, ≥ 0 [-]
+
+    Returns
+    -------
+    f : ndarray
+        Darcy friction factor [-]
+
+    Notes
+    -----
+    Solves the implicit equation to machine precision for all Re > 0; physically
+    meaningful for turbulent flow only (Re > 4000).
+
+    Examples
+    --------
+    >>> round(float(colebrook_clamond(1e5, 1e-4)), 6)
+    0.018514
+
+    References
+    ----------
+    Clamond, D. (2009). Ind. Eng. Chem. Res. 48(7), 3665–3671. doi:10.1021/ie801626g
+    """
+    Re = np.asarray(Re, dtype=float)
+    eD = np.asarray(rel_roughness, dtype=float)
+    X1 = eD * Re * _LN10_18574
+    X2 = np.log(Re) - _LN_LN10_502
+    F = X2 - 0.2
+    X1F = X1 + F
+    X1F1 = 1.0 + X1F
+    E = (np.log(X1F) - 0.2) / X1F1
+    F = F - (X1F1 + 0.5 * E) * E * X1F / (X1F1 + E * (1.0 + E / 3.0))
+    X1F = X1 + F
+    X1F1 = 1.0 + X1F
+    E = (np.log(X1F) + F - X2) / X1F1
+    F = F - (X1F1 + 0.5 * E) * E * X1F / (X1F1 + E * (1.0 + E / 3.0))
+    return _HALF_LN10_SQ / (F * F)
+
+
+def darcy_friction(Re, rel_roughness):
+    """Darcy friction factor for any Re ≥ 0, continuous across the transition zone.
+
+    Parameters
+    ----------
+    Re : array_like
+        Reynolds number, ≥ 0 [-]; Re = 0 returns ``inf`` (the laminar limit; multiply by
+        V² = 0 to get a zero loss — callers clip Re to a tiny positive value).
+    rel_roughness : array_like
+        Relative roughness ε/D, ≥ 0 [-]
+
+    Returns
+    -------
+    f : ndarray
+        Darcy friction factor [-]
+
+    Notes
+    -----
+    Policy as in the module docstring: 64/Re below Re 2000, Colebrook above 4000, linear in
+    Re between. Relative roughness above 0.05 is beyond the Moody chart.
+
+    Examples
+    --------
+    >>> round(float(darcy_friction(3000.0, 0.0)), 5)
+    0.03595
+
+    References
+    ----------
+    Colebrook (1939); Clamond (2009); Moody, L. F. (1944). Friction factors for pipe flow.
+    Trans. ASME 66(8), 671–684.
+    """
+    Re = np.asarray(Re, dtype=float)
+    eD = np.broadcast_to(np.asarray(rel_roughness, dtype=float), Re.shape)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        lam = 64.0 / Re
+        turb = colebrook_clamond(np.maximum(Re, RE_TURBULENT), eD)
+        f4000 = colebrook_clamond(np.full(Re.shape, RE_TURBULENT), eD)
+    w = np.clip((Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR), 0.0, 1.0)
+    blend = (1.0 - w) * (64.0 / RE_LAMINAR) + w * f4000
+    out = np.where(Re < RE_LAMINAR, lam, np.where(Re > RE_TURBULENT, turb, blend))
+    return out if out.ndim else out[()]
+
+
+def regime(Re):
+    """Flow regime names for an array of Re: 'laminar', 'transition' or 'turbulent'.
+
+    >>> list(regime([100.0, 3000.0, 1e5]))
+    ['laminar', 'transition', 'turbulent']
+    """
+    Re = np.asarray(Re, dtype=float)
+    return np.where(Re < RE_LAMINAR, "laminar",
+                    np.where(Re > RE_TURBULENT, "turbulent", "transition"))
+
+
+def transition_findings(subject: str, Re) -> list[Finding]:
+    """A CHECK finding when any Re lies in the transition zone 2000–4000.
+
+    >>> transition_findings("segment A", [3000.0])[0].severity.value
+    'check'
+    """
+    Re = np.atleast_1d(np.asarray(Re, dtype=float))
+    inside = (Re >= RE_LAMINAR) & (Re <= RE_TURBULENT)
+    if not inside.any():
+        return []
+    return [Finding(
+        Severity.CHECK, subject, "Reynolds number", float(Re[inside][0]), "-",
+        f"outside {RE_LAMINAR:.0f}–{RE_TURBULENT:.0f}",
+        "flow in the laminar–turbulent transition; friction is uncertain there "
+        "(a linear blend is used)",
+        "Moody (1944); blend policy: this kit")]

@@ -1,0 +1,328 @@
+"""Segments and lines: head loss over arrays of flow, and the pressure profile along a route.
+
+A :class:`Segment` is one pipe run — a pipe, a length, an elevation change from inlet to
+outlet and the fittings in it. A :class:`Line` is segments in order, with a named station at
+the start and at the end of every segment. Head loss is Darcy–Weisbach with the friction
+factor of :func:`kit.core.friction.darcy_friction` plus the fittings' K, each referred to the
+bore of the segment it sits in:
+
+.. math:: h_L = \\left(f\\frac{L}{D} + \\sum K\\right)\\frac{V^2}{2g}
+
+Fitting losses are lumped at the end of their segment in the profile. Put a station at every
+high point (end a segment there) so the profile sees it.
+
+Example
+-------
+>>> import numpy as np
+>>> from types import SimpleNamespace as NS
+>>> pipe = NS(Di=0.1023, area=np.pi / 4 * 0.1023**2, roughness=4.5e-5)
+>>> water = NS(rho=998.2, mu=1.002e-3)
+>>> line = Line("L1", (Segment("run", pipe, 100.0),))
+>>> round(float(line.head_loss(np.array([0.01]), water)[0]), 3)
+1.44
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+
+from kit.core.findings import Finding, Severity
+from kit.core.friction import darcy_friction, transition_findings
+from kit.errors import InputError, OutOfRangeError, check_range
+
+__all__ = ["G", "Segment", "Line", "Profile", "Station", "vapour_findings", "RE_FLOOR"]
+
+#: Standard gravity [m/s²] (CGPM 1901, exact).
+G = 9.80665
+#: Re is floored here so that f·V² → 0 at zero flow rather than inf·0.
+RE_FLOOR = 1e-9
+
+
+def _fittings_K(fittings, Re, D, roughness):
+    if not fittings:
+        return np.zeros_like(Re)
+    from kit.core.fittings import fittings_K_total
+
+    return np.asarray(fittings_K_total(fittings, Re, D, roughness), dtype=float)
+
+
+@dataclass(frozen=True)
+class Segment:
+    """One pipe run.
+
+    Parameters
+    ----------
+    name : str
+        A name for the run (also the default name of its end station).
+    pipe : Pipe
+        Anything with ``Di`` [m], ``area`` [m²] and ``roughness`` [m].
+    length : float
+        Developed length of pipe [m], > 0.
+    rise : float
+        Elevation of the outlet minus elevation of the inlet [m]; negative for a fall.
+        Its magnitude cannot exceed the length.
+    fittings : tuple of Fitting
+        The rows of the segment's fitting list.
+    end_station : str, optional
+        Name of the station at the outlet; defaults to ``name``.
+    """
+
+    name: str
+    pipe: object
+    length: float
+    rise: float = 0.0
+    fittings: tuple = field(default=())
+    end_station: str | None = None
+
+    def __post_init__(self):
+        check_range(f"length of segment '{self.name}'", self.length, "m", low=0.0, high=1e6)
+        check_range(f"rise of segment '{self.name}'", self.rise, "m",
+                    low=-self.length, high=self.length, low_inclusive=True)
+        if not isinstance(self.fittings, tuple):
+            object.__setattr__(self, "fittings", tuple(self.fittings))
+
+    @property
+    def station(self) -> str:
+        return self.end_station or self.name
+
+    def velocity(self, Q):
+        """Mean velocity [m/s] for flows ``Q`` [m³/s]."""
+        return np.asarray(Q, dtype=float) / self.pipe.area
+
+    def reynolds(self, Q, state):
+        """Reynolds number [-] for flows ``Q`` [m³/s] of a liquid state (rho, mu)."""
+        return state.rho * self.velocity(Q) * self.pipe.Di / state.mu
+
+    def loss_terms(self, Q, state):
+        """Friction and fitting heads [m] and the Re array, over flows ``Q`` [m³/s].
+
+        Returns ``(h_friction, h_fittings, Re)`` each shaped like ``Q``.
+        """
+        V = self.velocity(Q)
+        Re = np.maximum(state.rho * V * self.pipe.Di / state.mu, RE_FLOOR)
+        eD = self.pipe.roughness / self.pipe.Di
+        f = darcy_friction(Re, eD)
+        vh = V * V / (2.0 * G)
+        K = _fittings_K(self.fittings, Re, self.pipe.Di, self.pipe.roughness)
+        return f * (self.length / self.pipe.Di) * vh, K * vh, Re
+
+    def head_loss(self, Q, state):
+        """Total head loss of the segment [m] over flows ``Q`` [m³/s]."""
+        hf, hk, _ = self.loss_terms(Q, state)
+        return hf + hk
+
+
+def _flows(Q) -> np.ndarray:
+    Q = np.asarray(Q, dtype=float)
+    if Q.size and (not np.all(np.isfinite(Q)) or Q.min() < 0):
+        bad = Q[~np.isfinite(Q) | (Q < 0)].flat[0]
+        raise OutOfRangeError("flow", float(bad), "m³/s", low=0.0, low_inclusive=True)
+    return Q
+
+
+@dataclass(frozen=True)
+class Station:
+    """State at one station of a line profile (SI; pressures absolute)."""
+
+    name: str
+    x: float
+    z: float
+    p: float
+    p_gauge: float
+    V: float
+    hgl: float
+    egl: float
+
+
+@dataclass(frozen=True)
+class Profile:
+    """Pressure, HGL and EGL at every station of a line at one flow.
+
+    HGL = z + (p − p_baro)/(ρg) (gauge basis) and EGL = HGL + V²/2g [m]; ``lowest`` is the
+    station with the lowest absolute pressure.
+    """
+
+    line: str
+    Q: float
+    stations: tuple
+    p_baro: float
+    rho: float
+
+    @property
+    def lowest(self) -> Station:
+        return min(self.stations, key=lambda s: s.p)
+
+    def column(self, name: str) -> np.ndarray:
+        return np.array([getattr(s, name) for s in self.stations])
+
+
+@dataclass(frozen=True)
+class Line:
+    """Segments in order, with a named station at the start and at each segment's end.
+
+    Parameters
+    ----------
+    name : str
+    segments : tuple of Segment
+    start_station : str
+    start_elevation : float
+        Elevation of the start station [m]; the others follow from each segment's rise.
+    """
+
+    name: str
+    segments: tuple
+    start_station: str = "start"
+    start_elevation: float = 0.0
+
+    def __post_init__(self):
+        if not isinstance(self.segments, tuple):
+            object.__setattr__(self, "segments", tuple(self.segments))
+        if not self.segments:
+            raise InputError(f"segments of line '{self.name}'", 0, "must hold at least 1 segment")
+        names = [self.start_station] + [s.station for s in self.segments]
+        dupes = sorted({n for n in names if names.count(n) > 1})
+        if dupes:
+            raise InputError(f"station names of line '{self.name}'", dupes[0],
+                             "must be unique along the line")
+
+    @property
+    def length(self) -> float:
+        return float(sum(s.length for s in self.segments))
+
+    def with_condition(self, condition: str) -> Line:
+        """A copy with every pipe's roughness at ``condition`` ('new' or 'aged')."""
+        segs = tuple(replace(s, pipe=s.pipe.with_condition(condition)) for s in self.segments)
+        return replace(self, segments=segs)
+
+    @property
+    def rise(self) -> float:
+        return float(sum(s.rise for s in self.segments))
+
+    @property
+    def end_elevation(self) -> float:
+        return self.start_elevation + self.rise
+
+    @property
+    def exit_area(self) -> float:
+        return float(self.segments[-1].pipe.area)
+
+    def segment_losses(self, Q, state) -> np.ndarray:
+        """Head loss of each segment [m], shape ``(n_segments, n_Q)``."""
+        Q = np.atleast_1d(_flows(Q))
+        return np.stack([s.head_loss(Q, state) for s in self.segments])
+
+    def head_loss(self, Q, state) -> np.ndarray:
+        """Total head loss [m] over flows ``Q`` [m³/s] (same shape as ``Q``).
+
+        Method: Darcy–Weisbach with :func:`~kit.core.friction.darcy_friction`, plus fittings.
+        """
+        Q = _flows(Q)
+        total = np.zeros(np.shape(Q))
+        for s in self.segments:
+            total = total + s.head_loss(Q, state)
+        return total
+
+    def profile(self, Q: float, state, p_start: float, p_baro: float = 101325.0) -> Profile:
+        """Stations' pressure, HGL and EGL at flow ``Q`` [m³/s].
+
+        Parameters
+        ----------
+        Q : float
+            Flow [m³/s], ≥ 0.
+        state : LiquidState
+            Density and viscosity of the flowing liquid.
+        p_start : float
+            Static pressure at the start station, in the first segment's flow [Pa abs].
+        p_baro : float
+            Barometric pressure for gauge values [Pa].
+
+        Notes
+        -----
+        Energy balance station to station (Bernoulli with a head-loss term):
+        p₂ = p₁ + ρg(z₁ − z₂) + ρ(V₁² − V₂²)/2 − ρg·h_L.
+        """
+        Q = float(_flows(np.array([Q]))[0])
+        rho, g = state.rho, G
+        z = self.start_elevation
+        V = Q / self.segments[0].pipe.area
+        p = float(p_start)
+        x = 0.0
+        out = [self._station(self.start_station, x, z, p, V, p_baro, rho)]
+        for s in self.segments:
+            V2 = Q / s.pipe.area
+            hl = float(s.head_loss(np.array([Q]), state)[0])
+            z2 = z + s.rise
+            p = p + rho * g * (z - z2) + 0.5 * rho * (V * V - V2 * V2) - rho * g * hl
+            x += s.length
+            z, V = z2, V2
+            out.append(self._station(s.station, x, z, p, V, p_baro, rho))
+        return Profile(self.name, Q, tuple(out), p_baro, rho)
+
+    @staticmethod
+    def _station(name, x, z, p, V, p_baro, rho) -> Station:
+        hgl = z + (p - p_baro) / (rho * G)
+        return Station(name, x, z, p, p - p_baro, V, hgl, hgl + V * V / (2 * G))
+
+    def findings(self, Q, state) -> list[Finding]:
+        """Transition-zone findings for each segment over flows ``Q``."""
+        out = []
+        Q = np.atleast_1d(_flows(Q))
+        for s in self.segments:
+            out += transition_findings(f"segment '{s.name}' of line '{self.name}'",
+                                       s.reynolds(Q, state))
+        return out
+
+
+def vapour_findings(profile: Profile, pv: float | None, margin_head: float = 2.0,
+                    subject: str | None = None) -> list[Finding]:
+    """Lowest pressure in a line against vapour pressure and atmosphere.
+
+    FAIL where the lowest absolute pressure is at or below the vapour pressure; CHECK where
+    it is within ``margin_head`` [m of liquid] of it; CHECK where it is below atmospheric
+    (vacuum: air comes out of solution and leaks in at joints; a siphon crest). The margin
+    is common practice, no source; it is the user's to set.
+
+    Parameters
+    ----------
+    profile : Profile
+    pv : float or None
+        Vapour pressure [Pa abs]; ``None`` raises (the user must give one).
+    margin_head : float
+        Required margin above vapour pressure [m of liquid].
+
+    Examples
+    --------
+    >>> st = Station("crest", 0, 8.0, 5000.0, 5000.0 - 101325.0, 1.0, 0.0, 0.0)
+    >>> prof = Profile("L", 0.01, (st,), 101325.0, 998.0)
+    >>> vapour_findings(prof, 2339.0)[0].severity.value
+    'check'
+    """
+    if pv is None:
+        raise InputError("vapour pressure", None,
+                         "is needed for the vacuum check: this liquid has no vapour-pressure "
+                         "model, give a value")
+    low = profile.lowest
+    subject = subject or f"station '{low.name}' of line '{profile.line}'"
+    margin = (low.p - pv) / (profile.rho * G)
+    src = "common practice, no source (margin user-set)"
+    out = []
+    if low.p <= pv:
+        out.append(Finding(Severity.FAIL, subject, "pressure above vapour pressure", margin, "m",
+                           "> 0 m", "liquid boils (cavitates) where pressure falls to vapour "
+                           "pressure; flow breaks", "definition of vapour pressure"))
+    elif margin < margin_head:
+        out.append(Finding(Severity.CHECK, subject, "pressure above vapour pressure", margin, "m",
+                           f">= {margin_head:g} m", "lowest pressure close to vapour pressure",
+                           src))
+    else:
+        out.append(Finding(Severity.PASS, subject, "pressure above vapour pressure", margin, "m",
+                           f">= {margin_head:g} m", "lowest pressure clear of vapour pressure",
+                           src))
+    if low.p < profile.p_baro and low.p > pv:
+        out.append(Finding(Severity.CHECK, subject, "gauge pressure", low.p_gauge, "Pa",
+                           ">= 0 Pa(g)", "below atmospheric: siphon or suction lift; air "
+                           "release and in-leakage, vacuum rating of pipe and joints",
+                           "common practice, no source"))
+    return out
