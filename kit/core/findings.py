@@ -17,12 +17,12 @@ Example
 from __future__ import annotations
 
 from dataclasses import dataclass
-from enum import Enum
+from enum import StrEnum
 
 __all__ = ["Severity", "Finding", "CAUTIONS", "cautions_for", "worst"]
 
 
-class Severity(str, Enum):
+class Severity(StrEnum):
     """How a result stands against its limit."""
 
     PASS = "pass"

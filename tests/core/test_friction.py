@@ -9,7 +9,12 @@ from hypothesis import strategies as st
 from scipy.optimize import brentq
 
 from kit.core.friction import (
-    RE_LAMINAR, RE_TURBULENT, colebrook_clamond, darcy_friction, regime, transition_findings,
+    RE_LAMINAR,
+    RE_TURBULENT,
+    colebrook_clamond,
+    darcy_friction,
+    regime,
+    transition_findings,
 )
 
 

@@ -1,0 +1,81 @@
+"""Plain-text summaries of results: stable, rounded, fixed-width.
+
+The same text ends every notebook (nbval compares it, so tolerance lives in the rounding)
+and is what ``python -m kit demo`` prints.
+
+Example
+-------
+>>> from kit.results import Results
+>>> r = Results("line_sizing"); r.add("q", "design flow", 0.0125, "flow")
+>>> print(summary(None, r, "SI").splitlines()[-1])
+findings: 0 pass, 0 check, 0 fail
+"""
+
+from __future__ import annotations
+
+import textwrap
+
+from kit import units
+
+__all__ = ["summary", "findings_text"]
+
+
+def findings_text(findings, system: str = "SI", width: int = 100) -> list[str]:
+    """One line per finding: severity, subject, quantity = value (limit), rule [source]."""
+    out = []
+    for f in findings:
+        value = _finding_value(f, system)
+        line = (f"{f.severity.value.upper():5s} {f.subject}: {f.quantity} {value} "
+                f"(limit {f.limit}); {f.rule} [{f.source}]")
+        out += textwrap.wrap(line, width, subsequent_indent="      ")
+    return out
+
+
+_SI_TO_KIND = {"m/s": "velocity", "m": "head", "Pa": "pressure_difference",
+               "Pa/m": "pressure_per_length", "m³/s": "flow", "W": "power", "s": "time"}
+
+
+def _finding_value(f, system: str) -> str:
+    import math
+
+    if f.value is None or (isinstance(f.value, float) and math.isnan(f.value)):
+        return ""
+    kind = _SI_TO_KIND.get(f.unit)
+    if kind:
+        return "= " + units.fmt(f.value, kind, system)
+    return f"= {f.value:.3g} {f.unit}".rstrip()
+
+
+def summary(scenario, results, system: str = "SI", full: bool = False) -> str:
+    """A fixed-width text summary of ``results`` in a display system.
+
+    ``full`` adds methods and cautions (for the terminal); notebooks print the short form.
+    """
+    lines = []
+    if scenario is not None:
+        lines.append(f"{scenario.title}  [{scenario.kind}]")
+        lines.append("-" * min(100, max(20, len(lines[0]))))
+    w = max([len(v.label) for v in results.values] + [10])
+    for v in results.values:
+        lines.append(f"{v.label:<{w}}  {units.fmt(v.value, v.kind, system)}")
+    if full:
+        if results.findings:
+            lines.append("")
+            lines.append("Findings")
+            lines += findings_text(results.findings, system)
+        if results.methods:
+            lines.append("")
+            lines.append("Methods")
+            for m in results.methods:
+                lines += textwrap.wrap(f"- {m.name}: {m.reference}", 100,
+                                       subsequent_indent="  ")
+        if results.cautions:
+            lines.append("")
+            lines.append("Cautions")
+            for c in results.cautions:
+                lines += textwrap.wrap(f"! {c}", 100, subsequent_indent="  ")
+    counts = {s: sum(1 for f in results.findings if f.severity.value == s)
+              for s in ("pass", "check", "fail")}
+    lines.append(f"findings: {counts['pass']} pass, {counts['check']} check, "
+                 f"{counts['fail']} fail")
+    return "\n".join(lines)
