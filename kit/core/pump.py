@@ -1,0 +1,671 @@
+"""Pump curves from datasheet points: least-squares fit, affinity laws, pumps in parallel and series.
+
+A :class:`PumpCurve` stores the maker's datasheet points (flow [m³/s], head [m] of the pumped
+liquid, and optionally efficiency [-], NPSHr [m] and shaft power [W] on the same flows), the
+speed the points were taken at **in rpm** (``speed_rpm``; rpm, not rad/s — pint converts
+``"1450 rpm"`` to ``1/s`` as rad/s, so the edge must ask for ``revolution/minute``), and the
+impeller diameter [m]. Each curve is fitted by polynomial least squares
+(:data:`FIT_METHODS`); :meth:`PumpCurve.fit_report` shows the degree and the residuals.
+
+Affinity laws (Karassik, Messina, Cooper & Heald, *Pump Handbook*, 4th ed., McGraw-Hill 2008,
+ch. 2; Hydraulic Institute) — from memory:
+
+- speed: Q ∝ n, H ∝ n², P ∝ n³, η unchanged along the parabola H ∝ Q²; NPSHr ∝ n²
+  (approximate: the exponent found in tests varies, commonly quoted 1.5–2.5);
+- impeller trim (the simple law): Q ∝ D, H ∝ D², P ∝ D³; reliable only for small trims.
+
+:func:`parallel` sums flows at equal head, :func:`series` sums heads at equal flow; both return
+a :class:`PumpSet` with the same ``head(Q)`` interface, so the operating-point code takes
+either.
+
+Example
+-------
+>>> import numpy as np
+>>> p = PumpCurve([0.0, 0.01, 0.02, 0.03], [40.0, 38.0, 32.0, 22.0], speed_rpm=2900.0,
+...               diameter=0.2, efficiency=[0.0, 0.55, 0.72, 0.68], name="P-1")
+>>> round(float(p.head(0.02)), 2)
+32.0
+>>> round(float(p.at_speed(1450.0).head(0.01)), 2)
+8.0
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import cached_property
+
+import numpy as np
+from numpy.polynomial import Polynomial
+from numpy.polynomial import polynomial as npoly
+
+from kit.core.findings import Finding, Severity
+from kit.errors import InputError, OutOfRangeError, UnknownChoiceError, check_range
+
+__all__ = [
+    "FIT_METHODS", "AFFINITY_LIMITS", "AFFINITY_SOURCE", "CurveFit", "PumpCurve", "PumpSet",
+    "parallel", "series",
+]
+
+G = 9.80665  # standard gravity [m/s²]
+
+#: Curve-fit methods: polynomial least squares (numpy) with default degrees per curve.
+#: ``efficiency`` default: 3 with 5 or more points, else 2.
+FIT_METHODS: dict[str, dict] = {
+    "polynomial": {
+        "label": "polynomial least squares (numpy.polynomial.Polynomial.fit)",
+        "degrees": {"head": 2, "efficiency": (2, 3), "npshr": 2, "power": 2},
+        "max_degree": 4,
+        "source": "ordinary least squares, Legendre 1805 / Gauss 1809",
+    },
+}
+
+#: Validity limits of the affinity laws, as data. Ratios are to the datasheet speed/diameter.
+AFFINITY_LIMITS: dict[str, dict] = {
+    "speed": {"ratio_check_below": 0.4, "ratio_check_above": 1.0,
+              "source": "common practice, no source (accuracy falls at low speed; "
+                        "above rated speed the maker must confirm motor, casing and seal)"},
+    "trim": {"ratio_check_below": 0.9, "ratio_min": 0.5, "ratio_max": 1.0,
+             "source": "common practice, from memory: the simple trim law holds for trims of "
+                       "up to ~10 % (some say 20 %) of the full diameter; maker's trim curves "
+                       "govern"},
+    "head_rise_tolerance": {"fraction_of_shutoff": 0.02,
+                            "source": "common practice, no source"},
+}
+
+AFFINITY_SOURCE = ("Karassik, I. J., Messina, J. P., Cooper, P., Heald, C. C. (2008). Pump "
+                   "Handbook, 4th ed. McGraw-Hill, ch. 2 (affinity laws; from memory); "
+                   "Hydraulic Institute")
+
+_CURVE_UNITS = {"head": "m", "efficiency": "-", "npshr": "m", "power": "W"}
+
+
+@dataclass(frozen=True)
+class CurveFit:
+    """One fitted curve: its polynomial, degree and residuals at the datasheet points."""
+
+    curve: str
+    degree: int
+    polynomial: Polynomial
+    max_residual: float
+    rms_residual: float
+    unit: str
+    points: int
+
+    @cached_property
+    def _mapped(self) -> tuple[float, float, np.ndarray, np.ndarray]:
+        off, scl = self.polynomial.mapparms()
+        c = self.polynomial.coef
+        return float(off), float(scl), c, npoly.polyder(c) * scl
+
+    def value(self, Q):
+        """The fitted curve at ``Q`` [m³/s] (Horner on the fit's scaled variable)."""
+        off, scl, c, _ = self._mapped
+        return npoly.polyval(off + scl * np.asarray(Q, dtype=float), c)
+
+    def slope(self, Q):
+        """d(curve)/dQ at ``Q`` [m³/s]."""
+        off, scl, _, d = self._mapped
+        return npoly.polyval(off + scl * np.asarray(Q, dtype=float), d)
+
+    def as_dict(self) -> dict:
+        return {"curve": self.curve, "degree": self.degree, "max_residual": self.max_residual,
+                "rms_residual": self.rms_residual, "unit": self.unit, "points": self.points,
+                "coefficients": [float(c) for c in self.polynomial.convert().coef]}
+
+
+def _as_points(field: str, values, n: int | None, unit: str) -> np.ndarray:
+    try:
+        arr = np.asarray(values, dtype=float).reshape(-1)
+    except (TypeError, ValueError):
+        raise InputError(field, values, "must be a list of numbers", unit) from None
+    if n is not None and arr.size != n:
+        raise InputError(field, arr.size, f"must have one value per flow point ({n} flows)",
+                         "values")
+    for i, v in enumerate(arr):
+        if not np.isfinite(v):
+            raise OutOfRangeError(f"{field} point {i + 1}", float(v), unit)
+    return arr
+
+
+def _fit(curve: str, Q: np.ndarray, y: np.ndarray, degree: int) -> CurveFit:
+    poly = Polynomial.fit(Q, y, degree)
+    res = poly(Q) - y
+    return CurveFit(curve, degree, poly, float(np.max(np.abs(res))),
+                    float(np.sqrt(np.mean(res ** 2))), _CURVE_UNITS[curve], int(Q.size))
+
+
+class PumpCurve:
+    """A pump's performance from datasheet points, fitted by polynomial least squares.
+
+    Parameters
+    ----------
+    flow : array_like
+        Datasheet flows, ≥ 3 points, ≥ 0, strictly increasing [m³/s]
+    head : array_like
+        Head at each flow, ≥ 0, not rising with flow by more than ``head_rise_tolerance`` ×
+        the first-point head [m of pumped liquid]
+    speed_rpm : float
+        Speed the datasheet was taken at [rpm]
+    diameter : float
+        Impeller diameter of the datasheet curve [m]
+    efficiency : array_like, optional
+        Pump efficiency at each flow, 0 < η ≤ 1 (η = 0 allowed at zero flow) [-]
+    npshr : array_like, optional
+        Net positive suction head required at each flow, ≥ 0 [m]
+    power : array_like, optional
+        Shaft power at each flow for liquid of density ``test_density``, ≥ 0 [W]
+    name : str, optional
+        Tag of the pump ("P-1") [-]
+    degrees : dict, optional
+        Polynomial degree per curve (keys ``head``, ``efficiency``, ``npshr``, ``power``);
+        1 ≤ degree ≤ min(points − 1, 4) [-]
+    test_density : float, optional
+        Density on which a datasheet power curve is based; makers usually state water,
+        ~1000 kg/m³ — check the datasheet [kg/m³]
+    head_rise_tolerance : float, optional
+        Allowed rise of head with flow, as a fraction of the first-point head [-]
+
+    Notes
+    -----
+    Evaluation beyond the last datasheet flow returns the extrapolated fit;
+    :meth:`range_findings` reports it as CHECK. Fitted efficiency is clipped to [0, 1].
+    Speed is kept in rpm (ratios only are used); the datasheet speed and diameter are
+    remembered through :meth:`at_speed` and :meth:`trimmed`.
+
+    Examples
+    --------
+    >>> p = PumpCurve([0.0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450.0, diameter=0.25)
+    >>> round(float(p.head(0.015)), 3)
+    25.5
+
+    References
+    ----------
+    .. [1] Karassik, I. J. et al. (2008). Pump Handbook, 4th ed. McGraw-Hill.
+    """
+
+    def __init__(self, flow, head, *, speed_rpm: float, diameter: float, efficiency=None,
+                 npshr=None, power=None, name: str = "pump", degrees: dict | None = None,
+                 test_density: float = 1000.0, head_rise_tolerance: float | None = None,
+                 _datasheet: tuple[float, float] | None = None,
+                 _findings: tuple[Finding, ...] = ()):
+        self.name = str(name)
+        Q = _as_points(f"flow of pump '{name}'", flow, None, "m³/s")
+        if Q.size < 3:
+            raise InputError(f"flow of pump '{name}'", int(Q.size),
+                             "needs at least 3 datasheet points", "points")
+        H = _as_points(f"head of pump '{name}'", head, Q.size, "m")
+        for i in range(Q.size):
+            check_range(f"flow of pump '{name}' point {i + 1}", Q[i], "m³/s", low=0.0,
+                        low_inclusive=True)
+            check_range(f"head of pump '{name}' point {i + 1}", H[i], "m", low=0.0,
+                        low_inclusive=True)
+        for i in range(1, Q.size):
+            if Q[i] == Q[i - 1]:
+                raise InputError(f"flow of pump '{name}' point {i + 1}", float(Q[i]),
+                                 f"duplicates point {i}; datasheet flows must be distinct",
+                                 "m³/s")
+            if Q[i] < Q[i - 1]:
+                raise InputError(f"flow of pump '{name}' point {i + 1}", float(Q[i]),
+                                 f"must be greater than point {i} ({Q[i - 1]:.6g} m³/s); "
+                                 "datasheet flows must strictly increase", "m³/s")
+        check_range(f"head of pump '{name}' point 1", H[0], "m", low=0.0)
+        tol = (AFFINITY_LIMITS["head_rise_tolerance"]["fraction_of_shutoff"]
+               if head_rise_tolerance is None else
+               check_range("head rise tolerance", head_rise_tolerance, "-", low=0.0,
+                           low_inclusive=True, high=1.0))
+        running_min = H[0]
+        for i in range(1, H.size):
+            if H[i] - running_min > tol * H[0] * (1 + 1e-12):
+                raise InputError(
+                    f"head of pump '{name}' point {i + 1}", float(H[i]),
+                    f"rises {H[i] - running_min:.4g} m above the lower head of an earlier point; "
+                    f"allowed rise is {tol:.3g} × first-point head = {tol * H[0]:.4g} m "
+                    "(a rising curve is unstable; enter the stable part only)", "m")
+            running_min = min(running_min, H[i])
+        self.speed_rpm = check_range(f"speed of pump '{name}'", speed_rpm, "rpm", low=0.0)
+        self.diameter = check_range(f"impeller diameter of pump '{name}'", diameter, "m", low=0.0)
+        self.test_density = check_range("test density", test_density, "kg/m³", low=0.0)
+        self.head_rise_tolerance = tol
+        self.datasheet_speed_rpm, self.datasheet_diameter = (
+            _datasheet if _datasheet is not None else (self.speed_rpm, self.diameter))
+        self.scaling_findings: tuple[Finding, ...] = tuple(_findings)
+
+        self.flow, self.head_points = Q, H
+        self.efficiency_points = self.npshr_points = self.power_points = None
+        if efficiency is not None:
+            eta = _as_points(f"efficiency of pump '{name}'", efficiency, Q.size, "-")
+            for i, e in enumerate(eta):
+                if Q[i] == 0.0 and e == 0.0:
+                    continue  # zero efficiency at shut-off is physical
+                check_range(f"efficiency of pump '{name}' point {i + 1}", e, "-", low=0.0, high=1.0)
+            self.efficiency_points = eta
+        if npshr is not None:
+            npr = _as_points(f"NPSHr of pump '{name}'", npshr, Q.size, "m")
+            for i, v in enumerate(npr):
+                check_range(f"NPSHr of pump '{name}' point {i + 1}", v, "m", low=0.0,
+                            low_inclusive=True)
+            self.npshr_points = npr
+        if power is not None:
+            pw = _as_points(f"power of pump '{name}'", power, Q.size, "W")
+            for i, v in enumerate(pw):
+                check_range(f"power of pump '{name}' point {i + 1}", v, "W", low=0.0,
+                            low_inclusive=True)
+            self.power_points = pw
+
+        self.degrees = self._degrees(degrees)
+        self.fits: dict[str, CurveFit] = {"head": _fit("head", Q, H, self.degrees["head"])}
+        for key, pts in (("efficiency", self.efficiency_points), ("npshr", self.npshr_points),
+                         ("power", self.power_points)):
+            if pts is not None:
+                self.fits[key] = _fit(key, Q, pts, self.degrees[key])
+        self._table = None  # lazily built inverse table (head -> flow)
+
+    # ------------------------------------------------------------------ construction helpers
+    def _degrees(self, degrees: dict | None) -> dict[str, int]:
+        method = FIT_METHODS["polynomial"]
+        n = self.flow.size
+        out = {k: (v if isinstance(v, int) else (v[1] if n >= 5 else v[0]))
+               for k, v in method["degrees"].items()}
+        for key, deg in (degrees or {}).items():
+            if key not in out:
+                raise UnknownChoiceError("fit degree curve", key, list(out))
+            hi = min(n - 1, method["max_degree"])
+            out[key] = int(check_range(f"fit degree of {key}", deg, None, low=1, high=hi,
+                                       low_inclusive=True))
+        for key in out:
+            out[key] = min(out[key], n - 1)
+        return out
+
+    def _clone(self, Q, H, eta, npr, pw, speed_rpm, diameter, findings, name=None):
+        return PumpCurve(Q, H, speed_rpm=speed_rpm, diameter=diameter, efficiency=eta, npshr=npr,
+                         power=pw, name=self.name if name is None else name,
+                         degrees=dict(self.degrees), test_density=self.test_density,
+                         head_rise_tolerance=self.head_rise_tolerance,
+                         _datasheet=(self.datasheet_speed_rpm, self.datasheet_diameter),
+                         _findings=tuple(self.scaling_findings) + tuple(findings))
+
+    # ------------------------------------------------------------------ evaluation
+    @property
+    def q_end(self) -> float:
+        """Last datasheet flow [m³/s]."""
+        return float(self.flow[-1])
+
+    @property
+    def shutoff_head(self) -> float:
+        """Fitted head at zero flow [m]."""
+        return float(self.fits["head"].value(0.0))
+
+    def head(self, Q):
+        """Fitted head at flows ``Q`` [m³/s] -> [m] (extrapolated beyond the datasheet)."""
+        return self.fits["head"].value(Q)
+
+    def head_slope(self, Q):
+        """dH/dQ of the fitted head curve [m/(m³/s)]."""
+        return self.fits["head"].slope(Q)
+
+    def _need(self, key: str, what: str):
+        if key not in self.fits:
+            raise InputError(f"{what} of pump '{self.name}'", "none",
+                             "is needed but no datasheet points were given")
+        return self.fits[key].value
+
+    def efficiency(self, Q):
+        """Fitted efficiency at ``Q`` [m³/s], clipped to [0, 1] -> [-]."""
+        if "efficiency" not in self.fits and "power" in self.fits:
+            Q = np.asarray(Q, dtype=float)
+            P = self.power(Q, self.test_density)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                return np.clip(self.test_density * G * Q * self.head(Q) / P, 0.0, 1.0)
+        return np.clip(self._need("efficiency", "efficiency")(np.asarray(Q, dtype=float)), 0.0, 1.0)
+
+    def npshr(self, Q):
+        """Fitted NPSH required at ``Q`` [m³/s] -> [m]."""
+        return np.maximum(self._need("npshr", "NPSHr")(np.asarray(Q, dtype=float)), 0.0)
+
+    @property
+    def has_npshr(self) -> bool:
+        return "npshr" in self.fits
+
+    @property
+    def has_efficiency(self) -> bool:
+        return "efficiency" in self.fits or "power" in self.fits
+
+    def power(self, Q, rho: float):
+        """Shaft power at ``Q`` [m³/s] for liquid density ``rho`` [kg/m³] -> [W].
+
+        From the datasheet power curve scaled by ``rho / test_density`` when one was given,
+        else ρ g Q H / η. NaN where η = 0 and no power curve exists.
+        """
+        rho = check_range("density", rho, "kg/m³", low=0.0)
+        Q = np.asarray(Q, dtype=float)
+        if "power" in self.fits:
+            return self.fits["power"].value(Q) * rho / self.test_density
+        eta = self.efficiency(Q)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.where(eta > 0, rho * G * Q * self.head(Q) / np.where(eta > 0, eta, 1.0),
+                            np.nan)
+
+    @cached_property
+    def bep(self) -> tuple[float, float, float]:
+        """Best efficiency point (flow [m³/s], head [m], efficiency [-]) on the fitted η curve
+        within the datasheet flow range."""
+        if not self.has_efficiency:
+            raise InputError(f"efficiency of pump '{self.name}'", "none",
+                             "is needed for the best efficiency point")
+        Qs = np.linspace(self.flow[0], self.flow[-1], 2001)
+        eta = self.efficiency(Qs)
+        i = int(np.nanargmax(eta))
+        lo, hi = Qs[max(i - 1, 0)], Qs[min(i + 1, Qs.size - 1)]
+        Qf = np.linspace(lo, hi, 201)
+        j = int(np.nanargmax(self.efficiency(Qf)))
+        q = float(Qf[j])
+        return q, float(self.head(q)), float(self.efficiency(q))
+
+    def flow_at_head(self, H):
+        """Flow at which the fitted curve gives head ``H`` [m] -> [m³/s].
+
+        Zero where H ≥ shut-off head (a check valve holds the pump closed). Heads below the
+        curve's lowest value within 1.5 × the last datasheet flow give that limit flow.
+        """
+        if self._table is None:
+            Qs = np.linspace(0.0, 1.5 * self.q_end, 1025)
+            Hs = np.minimum.accumulate(self.head(Qs))
+            self._table = (Qs, Hs)
+        Qs, Hs = self._table
+        H = np.asarray(H, dtype=float)
+        q = np.interp(-H, -Hs, Qs)  # Hs non-increasing -> -Hs non-decreasing
+        poly, dpoly = self.fits["head"].value, self.fits["head"].slope
+        for _ in range(6):  # Newton polish from the table value; stops at machine precision
+            slope = dpoly(q)
+            ok = slope < 0
+            step = np.where(ok, (poly(q) - H) / np.where(ok, slope, -1.0), 0.0)
+            q = np.clip(q - step, 0.0, Qs[-1])
+            if np.all(np.abs(step) <= 1e-15 * Qs[-1]):
+                break
+        return np.where(H >= Hs[0], 0.0, q)
+
+    def range_findings(self, Q, subject: str | None = None) -> list[Finding]:
+        """CHECK findings where ``Q`` lies outside the datasheet flows [m³/s]."""
+        out = []
+        subject = subject or f"pump '{self.name}'"
+        for q in np.atleast_1d(np.asarray(Q, dtype=float)):
+            if q > self.q_end * (1 + 1e-9):
+                out.append(Finding(Severity.CHECK, subject, "flow", float(q), "m³/s",
+                                   f"<= {self.q_end:.6g} m³/s (last datasheet flow)",
+                                   "curve used beyond the last datasheet flow: the fit is "
+                                   "extrapolated; get the maker's curve to run-out and check "
+                                   "motor power and NPSHr there", "common practice, no source"))
+            elif q < self.flow[0] * (1 - 1e-9):
+                out.append(Finding(Severity.CHECK, subject, "flow", float(q), "m³/s",
+                                   f">= {self.flow[0]:.6g} m³/s (first datasheet flow)",
+                                   "curve used below the first datasheet flow: the fit is "
+                                   "extrapolated", "common practice, no source"))
+        return out
+
+    def fit_findings(self, rel_tol: float = 0.02) -> list[Finding]:
+        """CHECK where the head fit misses a datasheet point by more than ``rel_tol`` × shut-off."""
+        f = self.fits["head"]
+        lim = rel_tol * float(self.head_points[0])
+        sev = Severity.CHECK if f.max_residual > lim else Severity.PASS
+        return [Finding(sev, f"pump '{self.name}'", "head fit max residual", f.max_residual, "m",
+                        f"<= {lim:.4g} m", f"degree-{f.degree} polynomial fit of the head points",
+                        "common practice, no source")]
+
+    def fit_report(self) -> dict[str, dict]:
+        """Degree, max and RMS residual per fitted curve (units in each entry)."""
+        return {k: v.as_dict() for k, v in self.fits.items()}
+
+    # ------------------------------------------------------------------ affinity laws
+    def at_speed(self, speed_rpm: float) -> PumpCurve:
+        """The curve at another speed by the affinity laws [rpm] -> PumpCurve.
+
+        Q ∝ n, H ∝ n², P ∝ n³, η unchanged, NPSHr ∝ n² (approximate) (Karassik et al. 2008,
+        from memory). The new curve remembers the datasheet speed; findings say when the
+        scaling is approximate.
+
+        >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
+        >>> round(float(p.at_speed(1160).head(0.008)), 3)
+        17.92
+        """
+        n = check_range(f"speed of pump '{self.name}'", speed_rpm, "rpm", low=0.0)
+        r = n / self.speed_rpm
+        lim = AFFINITY_LIMITS["speed"]
+        ratio_ds = n / self.datasheet_speed_rpm
+        findings = []
+        subject = f"pump '{self.name}' at {n:.0f} rpm"
+        if ratio_ds < lim["ratio_check_below"]:
+            findings.append(Finding(Severity.CHECK, subject, "speed ratio", ratio_ds, "-",
+                                    f">= {lim['ratio_check_below']}", "affinity laws lose accuracy "
+                                    "at low speed; efficiency falls", lim["source"]))
+        if ratio_ds > lim["ratio_check_above"] * (1 + 1e-12):
+            findings.append(Finding(Severity.CHECK, subject, "speed ratio", ratio_ds, "-",
+                                    "<= 1 (datasheet speed)", "above the datasheet speed: the "
+                                    "maker must confirm speed, casing pressure and motor power; "
+                                    "local codes and licensed professional practice govern",
+                                    lim["source"]))
+        if self.npshr_points is not None and r != 1.0:
+            findings.append(Finding(Severity.CHECK, subject, "NPSHr scaling", r, "-",
+                                    "NPSHr ∝ n² assumed", "NPSHr scaled by the speed ratio squared "
+                                    "is approximate (exponents of ~1.5–2.5 are reported); ask the "
+                                    "maker for NPSHr at this speed", AFFINITY_SOURCE))
+        return self._clone(
+            self.flow * r, self.head_points * r * r, self.efficiency_points,
+            None if self.npshr_points is None else self.npshr_points * r * r,
+            None if self.power_points is None else self.power_points * r ** 3,
+            n, self.diameter, findings)
+
+    def trimmed(self, diameter: float) -> PumpCurve:
+        """The curve with a trimmed impeller by the simple trim law [m] -> PumpCurve.
+
+        Q ∝ D, H ∝ D², P ∝ D³, η unchanged (Karassik et al. 2008, from memory). Refused above
+        the datasheet diameter or below half of it; a CHECK finding below 90 % of it.
+
+        >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
+        >>> round(float(p.trimmed(0.225).head(0.009)), 3)
+        22.68
+        """
+        lim = AFFINITY_LIMITS["trim"]
+        D = check_range(f"trimmed impeller diameter of pump '{self.name}'", diameter, "m",
+                        low=lim["ratio_min"] * self.datasheet_diameter,
+                        high=lim["ratio_max"] * self.datasheet_diameter, low_inclusive=True)
+        r = D / self.diameter
+        ratio_ds = D / self.datasheet_diameter
+        findings = []
+        if ratio_ds < lim["ratio_check_below"]:
+            findings.append(Finding(Severity.CHECK, f"pump '{self.name}' trimmed to {D:.4g} m",
+                                    "trim ratio", ratio_ds, "-", f">= {lim['ratio_check_below']}",
+                                    "simple trim law (Q ∝ D, H ∝ D²) beyond its usual range: it "
+                                    "overstates head and efficiency; use the maker's trim curves",
+                                    lim["source"]))
+        return self._clone(
+            self.flow * r, self.head_points * r * r, self.efficiency_points, self.npshr_points,
+            None if self.power_points is None else self.power_points * r ** 3,
+            self.speed_rpm, D, findings)
+
+    def __repr__(self) -> str:
+        return (f"PumpCurve(name={self.name!r}, speed_rpm={self.speed_rpm:g}, "
+                f"diameter={self.diameter:g}, points={self.flow.size})")
+
+
+class PumpSet:
+    """Pumps in parallel (flows add at equal head) or series (heads add at equal flow).
+
+    Parameters
+    ----------
+    pumps : sequence of PumpCurve
+        Two or more pumps [-]
+    arrangement : str
+        ``"parallel"`` or ``"series"`` [-]
+    name : str, optional
+        Tag of the set [-]
+
+    Notes
+    -----
+    Parallel: each pump runs at the common head; a pump whose shut-off head is at or below it
+    delivers zero — its check valve holds it closed (each parallel pump needs a check valve).
+    Series: the first pump in the list takes suction; the set's NPSHr is that pump's. A series
+    pump driven beyond its zero-head flow would act as a resistance (negative head is summed).
+
+    Examples
+    --------
+    >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
+    >>> round(float(parallel([p, p]).head(0.02)), 3)
+    28.0
+    """
+
+    ARRANGEMENTS = ("parallel", "series")
+
+    def __init__(self, pumps, arrangement: str, name: str | None = None):
+        pumps = list(pumps)
+        if arrangement not in self.ARRANGEMENTS:
+            raise UnknownChoiceError("pump arrangement", arrangement, self.ARRANGEMENTS)
+        if len(pumps) < 2:
+            raise InputError("pumps in set", len(pumps), "needs at least 2 pumps", "pumps")
+        for i, p in enumerate(pumps):
+            if not isinstance(p, PumpCurve):
+                raise InputError(f"pump {i + 1} of set", type(p).__name__, "must be a PumpCurve")
+        self.pumps = pumps
+        self.arrangement = arrangement
+        self.name = name or f"{len(pumps)} in {arrangement}"
+        self.scaling_findings = tuple(f for p in pumps for f in p.scaling_findings)
+        self.test_density = pumps[0].test_density
+        if arrangement == "parallel":
+            h_top = max(p.shutoff_head for p in pumps)
+            h_low = max(float(p.head(1.5 * p.q_end)) for p in pumps)
+            Hs = np.linspace(h_top, h_low, 1025)
+            Qt = self._members_at_head(Hs).sum(axis=0)
+            self._table = (Hs, Qt)
+            h_end = max(float(p.head(p.q_end)) for p in pumps)
+            self._q_end = float(self._members_at_head(np.array([h_end])).sum())
+        else:
+            self._q_end = min(p.q_end for p in pumps)
+
+    def _members_at_head(self, H) -> np.ndarray:
+        return np.array([p.flow_at_head(H) for p in self.pumps])
+
+    @property
+    def q_end(self) -> float:
+        """Set flow at which the first member reaches its last datasheet flow [m³/s]."""
+        return self._q_end
+
+    @property
+    def shutoff_head(self) -> float:
+        if self.arrangement == "parallel":
+            return max(p.shutoff_head for p in self.pumps)
+        return float(sum(p.shutoff_head for p in self.pumps))
+
+    def head(self, Q):
+        """Head of the set at set flows ``Q`` [m³/s] -> [m]."""
+        Q = np.asarray(Q, dtype=float)
+        if self.arrangement == "series":
+            return sum(p.head(Q) for p in self.pumps)
+        Hs, Qt = self._table
+        H = np.interp(Q, Qt, Hs)  # Qt increases as Hs decreases
+        for _ in range(8):  # Newton on sum(Q_i(H)) - Q, dQ_i/dH = 1/H_i'(Q_i)
+            qi = self._members_at_head(H)
+            F = qi.sum(axis=0) - Q
+            dF = np.zeros_like(np.atleast_1d(H), dtype=float)
+            for p, q in zip(self.pumps, qi, strict=True):
+                s = p.head_slope(q)
+                on = (q > 0) & (s < 0)
+                dF = dF + np.where(on, 1.0 / np.where(on, s, -1.0), 0.0)
+            ok = dF < 0
+            step = np.where(ok, F / np.where(ok, dF, -1.0), 0.0)
+            H = np.clip(H - step, Hs[-1], Hs[0])
+            if np.all(np.abs(step) <= 1e-14 * Hs[0]):
+                break
+        return H.reshape(Q.shape) if Q.shape else H.reshape(())
+
+    def member_flows(self, Q) -> tuple[np.ndarray, np.ndarray]:
+        """Members' flows [m³/s] and heads [m] at set flows ``Q``, each shaped (pumps, flows)."""
+        Q = np.atleast_1d(np.asarray(Q, dtype=float))
+        if self.arrangement == "series":
+            return (np.broadcast_to(Q, (len(self.pumps), Q.size)),
+                    np.array([p.head(Q) for p in self.pumps]))
+        H = np.atleast_1d(self.head(Q))
+        return self._members_at_head(H), np.broadcast_to(H, (len(self.pumps), Q.size))
+
+    def members_at(self, Q) -> list[tuple[PumpCurve, float, float]]:
+        """(pump, flow [m³/s], head [m]) of each member at one set flow ``Q`` [m³/s]."""
+        qs, hs = self.member_flows(float(Q))
+        return [(p, float(q[0]), float(h[0])) for p, q, h in zip(self.pumps, qs, hs, strict=True)]
+
+    @property
+    def has_npshr(self) -> bool:
+        return all(p.has_npshr for p in self.pumps)
+
+    @property
+    def has_efficiency(self) -> bool:
+        return all(p.has_efficiency for p in self.pumps)
+
+    @staticmethod
+    def _idle_power(p: PumpCurve, rho: float) -> float:
+        """Power of a member held closed by its check valve: its shut-off power from a power
+        curve, else NaN (ρgQH/η is 0/0 at zero flow). It is still running dead-headed."""
+        return float(p.power(0.0, rho)) if "power" in p.fits else float("nan")
+
+    def power(self, Q, rho: float):
+        """Sum of members' shaft power at set flows ``Q`` [m³/s] -> [W] (NaN while a member
+        without a power curve is held shut: its dead-headed power is unknown)."""
+        qs, _ = self.member_flows(Q)
+        total = sum(np.where(q > 0, p.power(q, rho), self._idle_power(p, rho))
+                    for p, q in zip(self.pumps, qs, strict=True))
+        return total.reshape(np.shape(Q))
+
+    def efficiency(self, Q):
+        """Set efficiency ρ g Q H / Σ P_i [-]."""
+        Q = np.asarray(Q, dtype=float)
+        rho = self.test_density
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return rho * G * Q * self.head(Q) / self.power(Q, rho)
+
+    def npshr(self, Q):
+        """NPSHr of the set [m]: parallel, the largest of the members at their own flows;
+        series, the first pump's (it takes suction)."""
+        if self.arrangement == "series":
+            return self.pumps[0].npshr(Q)
+        qs, _ = self.member_flows(Q)
+        req = np.array([np.where(q > 0, p.npshr(q), 0.0)
+                        for p, q in zip(self.pumps, qs, strict=True)])
+        return req.max(axis=0).reshape(np.shape(Q))
+
+    @cached_property
+    def bep(self) -> tuple[float, float, float]:
+        """Best set efficiency within the set's datasheet range (flow, head, efficiency)."""
+        Qs = np.linspace(self.q_end * 0.02, self.q_end, 201)
+        eta = self.efficiency(Qs)
+        i = int(np.nanargmax(eta))
+        return float(Qs[i]), float(self.head(Qs[i])), float(eta[i])
+
+    def range_findings(self, Q, subject: str | None = None) -> list[Finding]:
+        out = []
+        for x in np.atleast_1d(np.asarray(Q, dtype=float)):
+            for p, q, _ in self.members_at(x):
+                out += p.range_findings(q, subject=f"{self.name}: pump '{p.name}'")
+        return out
+
+    def fit_report(self) -> dict[str, dict]:
+        return {p.name + f" #{i + 1}": p.fit_report() for i, p in enumerate(self.pumps)}
+
+    def __repr__(self) -> str:
+        return f"PumpSet({self.arrangement!r}, {[p.name for p in self.pumps]})"
+
+
+def parallel(pumps, name: str | None = None) -> PumpSet:
+    """Pumps in parallel: flows add at equal head (Karassik et al. 2008, from memory).
+
+    >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
+    >>> round(float(parallel([p, p]).head(0.04)), 3)
+    22.0
+    """
+    return PumpSet(pumps, "parallel", name)
+
+
+def series(pumps, name: str | None = None) -> PumpSet:
+    """Pumps in series: heads add at equal flow (Karassik et al. 2008, from memory).
+
+    >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
+    >>> round(float(series([p, p]).head(0.01)), 3)
+    56.0
+    """
+    return PumpSet(pumps, "series", name)
