@@ -1,0 +1,239 @@
+"""Run a study's notebook headless: ``python -m kit run SCENARIO.toml --out DIR``.
+
+The notebook that matches the scenario's ``kind`` (:data:`NOTEBOOKS`) is executed with
+nbclient (kernel ``python3``, widget state stored) with the scenario's path in
+``HEADLINE_SCENARIO`` and the output folder in ``HEADLINE_RECORD_DIR`` (contract in
+:mod:`kit.record`). Into ``DIR`` go:
+
+- ``<notebook>.ipynb``  the executed notebook (with its widget state),
+- ``<notebook>.html``   its nbconvert HTML export (plain nbconvert loads the widget renderer
+  from a CDN, so widgets in *this* file need a network; the record sheet does not),
+- ``<stem>.html`` and ``<stem>.json``  the record, written by the notebook's last section
+  (``<stem>`` is the scenario file's stem, passed as ``HEADLINE_RECORD_STEM``).
+
+The notebooks folder is ``$HEADLINE_NOTEBOOKS`` when set, else ``notebooks/`` beside the
+``kit`` package (the repository root). ``--notebook PATH`` runs a given notebook instead.
+
+Progress goes to the terminal (stderr): ``cell i/n``, the cell's first line, the elapsed
+time. An error in a cell stops the run with a message naming the cell (its number, id and
+first line) and the error; the partly executed notebook is still written for inspection.
+
+Exit codes: 0 done; 1 a cell failed, the kernel died or timed out, or no record was written;
+2 bad arguments (scenario unreadable, notebook not found).
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import time
+from dataclasses import dataclass
+from pathlib import Path
+
+__all__ = ["NOTEBOOKS", "RunOutcome", "notebooks_dir", "notebook_for", "run_notebook",
+           "run_main"]
+
+#: scenario kind -> notebook file name in the notebooks folder
+NOTEBOOKS = {
+    "line_sizing": "line_sizing.ipynb",
+    "pump_selection": "pump_selection.ipynb",
+    "tank_drainage": "tank_drainage.ipynb",
+}
+
+
+@dataclass
+class RunOutcome:
+    """What a run produced. ``code`` is the exit code; ``message`` says what went wrong."""
+
+    code: int = 0
+    message: str = ""
+    notebook: Path | None = None
+    notebook_html: Path | None = None
+    record_html: Path | None = None
+    record_json: Path | None = None
+    elapsed: float = 0.0
+
+    @property
+    def ok(self) -> bool:
+        return self.code == 0
+
+
+def notebooks_dir() -> Path:
+    """``$HEADLINE_NOTEBOOKS``, else ``notebooks/`` next to the ``kit`` package."""
+    env = os.environ.get("HEADLINE_NOTEBOOKS")
+    if env:
+        return Path(env).expanduser().resolve()
+    return Path(__file__).resolve().parent.parent / "notebooks"
+
+
+def notebook_for(kind: str) -> Path:
+    """The notebook that studies ``kind`` (it may not exist; :func:`run_notebook` says so)."""
+    from kit.errors import check_choice
+
+    return notebooks_dir() / NOTEBOOKS[check_choice("scenario kind", kind, tuple(NOTEBOOKS))]
+
+
+def _first_line(source: str) -> str:
+    for line in source.splitlines():
+        if line.strip():
+            return line.strip()[:70]
+    return "(empty)"
+
+
+class _Progress:
+    """Prints ``cell i/n`` lines with elapsed time."""
+
+    def __init__(self, nb, stream, quiet: bool = False):
+        self.stream = stream
+        self.quiet = quiet
+        self.t0 = time.perf_counter()
+        code = [i for i, c in enumerate(nb.cells) if c.cell_type == "code"]
+        self.ordinal = {idx: k + 1 for k, idx in enumerate(code)}
+        self.n = len(code)
+        self.current = None
+
+    def start(self, cell=None, cell_index=None, **_):
+        self.current = cell_index
+        if self.quiet or cell is None or cell.cell_type != "code":
+            return
+        k = self.ordinal.get(cell_index, "?")
+        el = time.perf_counter() - self.t0
+        print(f"  cell {k:>2}/{self.n}  {el:6.1f} s  {_first_line(cell.source)}",
+              file=self.stream, flush=True)
+
+    def describe(self, nb, cell_index) -> str:
+        if cell_index is None or cell_index >= len(nb.cells):
+            return "a cell"
+        cell = nb.cells[cell_index]
+        cid = getattr(cell, "id", None) or cell.get("id", "")
+        k = self.ordinal.get(cell_index, "?")
+        idt = f", id {cid}" if cid else ""
+        return f"code cell {k} of {self.n} (cell {cell_index + 1} in the notebook{idt}: " \
+               f"{_first_line(cell.source)!r})"
+
+
+def run_notebook(notebook, scenario_path, out_dir, *, timeout: float = 600.0,
+                 stem: str | None = None, stream=None, quiet: bool = False,
+                 export_html: bool = True) -> RunOutcome:
+    """Execute ``notebook`` for ``scenario_path`` and write the outputs into ``out_dir``.
+
+    Parameters
+    ----------
+    notebook : path
+        The ``.ipynb`` to execute.
+    scenario_path : path
+        The scenario file, passed as ``HEADLINE_SCENARIO``.
+    out_dir : path
+        Output folder, passed as ``HEADLINE_RECORD_DIR`` (created if needed).
+    timeout : float
+        Per-cell timeout [s].
+    stem : str, optional
+        Record file stem, passed as ``HEADLINE_RECORD_STEM`` (default: the scenario's stem).
+
+    Returns
+    -------
+    outcome : RunOutcome
+        Paths written and, on failure, a non-zero ``code`` and a ``message`` naming the cell.
+    """
+    stream = stream or sys.stderr
+    t0 = time.perf_counter()
+    nb_path = Path(notebook).resolve()
+    if not nb_path.is_file():
+        return RunOutcome(2, f"notebook {nb_path} not found (set HEADLINE_NOTEBOOKS to the "
+                          "notebooks folder, or pass --notebook)")
+    import nbformat
+    from nbclient import NotebookClient
+    from nbclient.exceptions import CellExecutionError, CellTimeoutError, DeadKernelError
+
+    out = Path(out_dir).resolve()
+    out.mkdir(parents=True, exist_ok=True)
+    stem = stem or Path(scenario_path).stem
+    try:
+        nb = nbformat.read(nb_path, as_version=4)
+    except (OSError, ValueError) as exc:
+        return RunOutcome(2, f"notebook {nb_path} cannot be read: {exc}")
+    rec_html, rec_json = out / f"{stem}.html", out / f"{stem}.json"
+    before = {p: p.stat().st_mtime_ns for p in (rec_html, rec_json) if p.exists()}
+    env = dict(os.environ)
+    env.update({"HEADLINE_SCENARIO": str(Path(scenario_path).resolve()),
+                "HEADLINE_RECORD_DIR": str(out), "HEADLINE_RECORD_STEM": stem})
+    progress = _Progress(nb, stream, quiet)
+    client = NotebookClient(nb, kernel_name="python3", timeout=timeout, store_widget_state=True,
+                            record_timing=False, on_cell_start=progress.start,
+                            resources={"metadata": {"path": str(nb_path.parent)}})
+    if not quiet:
+        print(f"running {nb_path.name} for {Path(scenario_path).name} "
+              f"({progress.n} code cells)", file=stream, flush=True)
+    failure = None
+    try:
+        client.execute(env=env)
+    except CellTimeoutError:
+        failure = (f"{progress.describe(nb, progress.current)} did not finish within "
+                   f"{timeout:g} s")
+    except CellExecutionError as exc:
+        failure = (f"{progress.describe(nb, progress.current)} raised "
+                   f"{exc.ename}: {exc.evalue}")
+    except DeadKernelError as exc:
+        failure = f"the kernel died while running {progress.describe(nb, progress.current)}: {exc}"
+    except Exception as exc:  # kernel start problems (NoSuchKernel, ...): say so plainly
+        failure = f"the notebook could not be executed: {type(exc).__name__}: {exc}"
+    out_nb = out / nb_path.name
+    nbformat.write(nb, out_nb)
+    outcome = RunOutcome(notebook=out_nb)
+    if failure:
+        outcome.code, outcome.elapsed = 1, time.perf_counter() - t0
+        outcome.message = f"{failure}\n(partly executed notebook written to {out_nb})"
+        return outcome
+    if export_html:
+        from nbconvert import HTMLExporter
+
+        body, _ = HTMLExporter().from_notebook_node(nb)
+        out_html = out / f"{nb_path.stem}.html"
+        if out_html == rec_html:
+            out_html = out / f"{nb_path.stem}.notebook.html"
+        out_html.write_text(body, encoding="utf-8")
+        outcome.notebook_html = out_html
+    outcome.elapsed = time.perf_counter() - t0
+    if all(p.exists() and before.get(p) != p.stat().st_mtime_ns for p in (rec_html, rec_json)):
+        outcome.record_html, outcome.record_json = rec_html, rec_json
+    else:
+        outcome.code = 1
+        outcome.message = (f"{nb_path.name} ran but wrote no record {rec_json.name} into {out} "
+                           "(its last section must call kit.record.write_record when "
+                           "HEADLINE_RECORD_DIR is set)")
+    return outcome
+
+
+def run_main(argv=None) -> int:
+    """``python -m kit run SCENARIO.toml --out DIR [--notebook NB]``; returns the exit code."""
+    ap = argparse.ArgumentParser(
+        prog="python -m kit run",
+        description="Execute the scenario's notebook headless and write the executed notebook, "
+                    "its HTML and the record (HTML + JSON) into a folder.",
+        epilog="exit codes: 0 done; 1 a cell failed or no record was written; 2 bad arguments")
+    ap.add_argument("scenario", help="scenario TOML file")
+    ap.add_argument("--out", required=True, help="output folder (created if needed)")
+    ap.add_argument("--notebook", default=None,
+                    help="run this notebook instead of the one for the scenario's kind")
+    ap.add_argument("--timeout", type=float, default=600.0, help="per-cell timeout [s]")
+    ap.add_argument("--quiet", action="store_true", help="no progress lines")
+    a = ap.parse_args(argv)
+    from kit import scenario as scn
+    from kit.errors import HeadlineError
+
+    try:
+        sc = scn.load(a.scenario)
+        nb = Path(a.notebook) if a.notebook else notebook_for(sc.kind)
+    except HeadlineError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
+    outcome = run_notebook(nb, a.scenario, a.out, timeout=a.timeout, quiet=a.quiet)
+    if not outcome.ok:
+        print(f"error: {outcome.message}", file=sys.stderr)
+        return outcome.code
+    print(f"done in {outcome.elapsed:.1f} s; wrote:", file=sys.stderr)
+    for p in (outcome.notebook, outcome.notebook_html, outcome.record_html, outcome.record_json):
+        if p is not None:
+            print(f"  {p}", file=sys.stderr)
+    return 0
