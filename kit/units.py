@@ -112,10 +112,13 @@ _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s
 _GAUGE = re.compile(r"^(Pa|kPa|MPa|bar|mbar|psi)\s*(?:\(g\)|g)$")
 _ABS = re.compile(r"^(Pa|kPa|MPa|bar|mbar|psi)\s*(?:\(a\)|a)$")
 _SPELLING = [
+    (re.compile(r"°F \(difference\)"), "delta_degF"),
     (re.compile(r"°\s*C\b"), "degC"), (re.compile(r"°\s*F\b"), "degF"),
     (re.compile(r"(?<![A-Za-z])(m|ft|in|cm|mm)([23])(?![0-9])"), r"\1**\2"),
     (re.compile("³"), "**3"), (re.compile("²"), "**2"), (re.compile("·"), "*"),
     (re.compile(r"\bmil\b"), "thou"),
+    (re.compile(r"\bUS gal\b"), "gallon"),
+    (re.compile(r"/\s*100\s*(m|ft)\b"), r"/(100 \1)"),
 ]
 
 
@@ -194,6 +197,9 @@ def parse(text, kind: str, field: str = "value", p_baro: float = 101325.0,
         if default_unit is None:
             raise UnitParseError(field, text, f"{expected} (a unit is required)")
         unit = default_unit
+    per100 = re.match(r"^(.*)/\(100 (m|ft)\)$", unit)
+    if per100:  # "kPa/100 m": a pressure per hundred lengths
+        value, unit = value / 100.0, f"{per100.group(1)}/{per100.group(2)}"
     gauge = False
     if kind == "pressure":
         g = _GAUGE.match(unit)
@@ -210,8 +216,7 @@ def parse(text, kind: str, field: str = "value", p_baro: float = 101325.0,
             q = ureg.Quantity(value, unit)
         else:
             q = value * ureg.Quantity(1.0, unit) if unit else ureg.Quantity(value)
-    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError,
-            TypeError, ValueError, AssertionError, SyntaxError):
+    except Exception:  # noqa: BLE001 — any failure to read the user's unit text is a parse error
         raise UnitParseError(field, text, expected) from None
     out = to_si(q, kind, field, text=text)
     return out + p_baro if gauge else out

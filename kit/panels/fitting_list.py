@@ -1,0 +1,350 @@
+"""FittingList: an editable table of fitting rows, each with its K at the current conditions.
+
+Each row has a kind (dropdown of :data:`kit.core.fittings.FITTING_KINDS`), a count, a label,
+the parameter fields the kind's parameter specs call for, the method the kind applies, and
+its K (count × K, referred to the bore of the pipe the list sits in) at the Reynolds number,
+bore and roughness given by :meth:`FittingList.set_conditions`. The K column and the total
+are computed by :func:`kit.core.fittings.fitting_K` and
+:func:`kit.core.fittings.fittings_K_total`; the panel itself holds no formula.
+
+Rows can be added, removed and duplicated. ``.value`` is a tuple of
+:class:`kit.core.fittings.Fitting` (None while any row is invalid).
+"""
+
+from __future__ import annotations
+
+import html
+
+import ipywidgets as widgets
+import numpy as np
+import traitlets
+
+from kit import units
+from kit.core import fittings as core_fittings
+from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
+from kit.panels.fields import QuantityField
+
+__all__ = ["FittingList", "FittingRow", "PARAM_UNIT_KINDS"]
+
+#: A parameter spec's SI unit -> the QuantityField kind that reads it.
+PARAM_UNIT_KINDS = {
+    "m": "length", "m/s": "velocity", "Pa": "pressure_difference", "m3/s": "flow",
+    "m³/s": "flow", "m2": "area", "m²": "area", "-": "dimensionless", "": "dimensionless",
+}
+
+
+def _spec(kind: str):
+    return core_fittings.FITTING_KINDS[kind]
+
+
+def _kind_label(kind: str) -> str:
+    return str(getattr(_spec(kind), "label", kind))
+
+
+def _params(kind: str):
+    return tuple(getattr(_spec(kind), "params", ()))
+
+
+def _param_kind(p) -> str:
+    return PARAM_UNIT_KINDS.get(str(getattr(p, "unit", "-")), "dimensionless")
+
+
+def _param_label(p) -> str:
+    label = str(getattr(p, "label", None) or p.name)
+    unit = str(getattr(p, "unit", "-"))
+    if _param_kind(p) == "dimensionless" and unit not in ("-", ""):
+        label += f" [{unit}]"
+    return label
+
+
+def _param_default(p):
+    for attr in ("default", "typical"):
+        v = getattr(p, attr, None)
+        if v is not None:
+            return v
+    return None
+
+
+def _method_text(kind: str) -> str:
+    spec = _spec(kind)
+    method = getattr(spec, "method", "")
+    source = getattr(spec, "source", "")
+    return " — ".join(str(x) for x in (method, source) if x)
+
+
+class FittingRow(widgets.VBox):
+    """One row of a :class:`FittingList` (built and wired by the list).
+
+    Attributes
+    ----------
+    kind : ipywidgets.Dropdown
+        (label, key) options of the fitting kinds.
+    count : ipywidgets.BoundedIntText
+        Number of identical fittings, 1 to 999.
+    label : ipywidgets.Text
+        Free text naming the row ("strainer").
+    fields : dict of str -> QuantityField
+        One field per parameter of the kind (rebuilt when the kind changes).
+    method, k : ipywidgets.HTML
+        The method applied (CSS ``hl-method``) and the row's K (``hl-k``).
+    message : ipywidgets.HTML
+        The row's error (CSS ``hl-error``).
+    duplicate, remove : ipywidgets.Button
+    """
+
+    def __init__(self, kind: str, count: int = 1, params: dict | None = None, label: str = "",
+                 system: str = "SI"):
+        self.system = system
+        self.kind = widgets.Dropdown(
+            options=[(_kind_label(k), k) for k in core_fittings.FITTING_KINDS], value=kind,
+            layout=widgets.Layout(width="18em"))
+        self.kind.add_class("hl-fitting-kind")
+        self.count = widgets.BoundedIntText(value=int(count), min=1, max=999,
+                                            layout=widgets.Layout(width="5em"))
+        self.count.add_class("hl-fitting-count")
+        self.label = widgets.Text(value=label, placeholder="label",
+                                  layout=widgets.Layout(width="10em"))
+        self.k = widgets.HTML("")
+        self.k.add_class("hl-k")
+        self.duplicate = widgets.Button(description="duplicate", layout=widgets.Layout(width="7em"))
+        self.remove = widgets.Button(description="remove", layout=widgets.Layout(width="6em"))
+        self.param_box = widgets.HBox([])
+        self.method = widgets.HTML("")
+        self.method.add_class("hl-method")
+        self.message = error_widget()
+        self.fields: dict[str, QuantityField] = {}
+        top = widgets.HBox([self.kind, widgets.Label("×"), self.count, self.label, self.k,
+                            self.duplicate, self.remove])
+        super().__init__([top, self.param_box, self.method, self.message])
+        self.add_class("hl-fitting-row")
+        self.build_fields(params or {})
+
+    def build_fields(self, params: dict) -> None:
+        """(Re)build the parameter fields for the current kind, filled from ``params`` (SI)."""
+        kind = self.kind.value
+        self.fields = {}
+        for p in _params(kind):
+            value = params.get(p.name, _param_default(p))
+            self.fields[p.name] = QuantityField(
+                _param_kind(p), _param_label(p), value_si=None if value is None else float(value),
+                system=self.system, field=p.name, width="8em")
+        self.param_box.children = tuple(self.fields.values())
+        self.method.value = f'<span class="hl-method-text">{html.escape(_method_text(kind))}</span>'
+
+    def read(self):
+        """The row's :class:`~kit.core.fittings.Fitting`; a kit error for bad input."""
+        for f in self.fields.values():
+            if not f.valid or f.value is None:
+                raise _RowInvalid(f.error or f"'{f.field}' is required")
+        params = {name: f.value for name, f in self.fields.items()}
+        return core_fittings.Fitting(self.kind.value, int(self.count.value), params,
+                                     self.label.value)
+
+    def show(self, fitting) -> None:
+        """Show a :class:`~kit.core.fittings.Fitting`."""
+        self.kind.value = fitting.kind
+        self.count.value = int(fitting.count)
+        self.label.value = fitting.label or ""
+        self.build_fields(dict(fitting.params))
+
+    def set_system(self, system: str) -> None:
+        self.system = system
+        for f in self.fields.values():
+            f.set_system(system)
+
+
+class _RowInvalid(Exception):
+    """Internal: a parameter field shows its own error."""
+
+
+class FittingList(Panel):
+    """An editable list of fittings with each row's K and the total.
+
+    Parameters
+    ----------
+    fittings : iterable of Fitting
+        The rows to show first.
+    system : str
+        'SI' or 'US'.
+    Re, D, roughness : float, optional
+        Conditions for the K column: Reynolds number [-], bore of the pipe the fittings sit
+        in [m], its absolute roughness [m] (see :meth:`set_conditions`).
+    title : str
+
+    Attributes
+    ----------
+    value : tuple of Fitting or None
+        None while any row is invalid.
+    rows : list of FittingRow
+    add : ipywidgets.Button
+        Appends a row of the first kind.
+    total : ipywidgets.HTML
+        Sum of the rows' K at the conditions (CSS ``hl-k-total``).
+    message : ipywidgets.HTML
+        Panel-level error (CSS ``hl-error``).
+
+    CSS class: ``hl-fitting-list``; rows ``hl-fitting-row``.
+    """
+
+    css_class = "hl-fitting-list"
+
+    def __init__(self, fittings=(), system: str = "SI", Re: float | None = None,
+                 D: float | None = None, roughness: float | None = None, title: str = "Fittings"):
+        self.Re, self.D, self.roughness = Re, D, roughness
+        self.heading = widgets.HTML(f"<b>{html.escape(title)}</b>" if title else "")
+        self.rows: list[FittingRow] = []
+        self.rows_box = widgets.VBox([])
+        self.add = widgets.Button(description="add fitting", icon="plus")
+        self.add.add_class("hl-fitting-add")
+        self.total = widgets.HTML("")
+        self.total.add_class("hl-k-total")
+        self.message = error_widget()
+        super().__init__([self.heading, self.rows_box, self.add, self.total, self.message],
+                         system=system)
+        self.add.on_click(self._on_add)
+        self.value = tuple(fittings)
+
+    # -- rows: the one place where row widgets are wired
+    def _make_row(self, kind: str, count: int = 1, params=None, label: str = "") -> FittingRow:
+        row = FittingRow(kind, count, params, label, self.system)
+        self._wire_row(row)
+        return row
+
+    def _wire_row(self, row: FittingRow) -> None:
+        row.kind.observe(lambda ch, r=row: self._on_kind(r), names="value")
+        row.count.observe(self._on_change, names="value")
+        row.label.observe(self._on_change, names="value")
+        row.duplicate.on_click(lambda _b, r=row: self._on_duplicate(r))
+        row.remove.on_click(lambda _b, r=row: self._on_remove(r))
+        self._wire_fields(row)
+
+    def _wire_fields(self, row: FittingRow) -> None:
+        for f in row.fields.values():
+            f.observe(self._on_change, names=["value", "valid"])
+
+    def _set_rows(self, rows) -> None:
+        self.rows = list(rows)
+        self.rows_box.children = tuple(self.rows)
+
+    def _on_add(self, _button=None) -> None:
+        first = next(iter(core_fittings.FITTING_KINDS))
+        self._set_rows([*self.rows, self._make_row(first)])
+        self._recompute()
+
+    def _on_duplicate(self, row: FittingRow) -> None:
+        params = {n: f.value for n, f in row.fields.items()}
+        copy = self._make_row(row.kind.value, row.count.value, params, row.label.value)
+        with self._quiet():
+            for src, dst in zip(row.fields.values(), copy.fields.values(), strict=True):
+                dst.set_text(src.text)
+        i = self.rows.index(row)
+        self._set_rows([*self.rows[:i + 1], copy, *self.rows[i + 1:]])
+        self._recompute()
+
+    def _on_remove(self, row: FittingRow) -> None:
+        self._set_rows([r for r in self.rows if r is not row])
+        self._recompute()
+
+    def _on_kind(self, row: FittingRow) -> None:
+        if self._busy:
+            return
+        row.build_fields({})
+        self._wire_fields(row)
+        self._recompute()
+
+    def _on_change(self, change) -> None:
+        if self._busy:
+            return
+        self._recompute()
+
+    # -- widgets -> tuple of Fitting
+    def _recompute(self) -> None:
+        self.message.value = ""
+        out, first_error = [], None
+        for row in self.rows:
+            row.message.value = ""
+            with self._quiet():
+                # re-read each box: a message the core put there clears, a parse error stays
+                for f in row.fields.values():
+                    f.clear_error()
+            try:
+                out.append(row.read())
+            except _RowInvalid as exc:
+                first_error = first_error or str(exc)
+            except KIT_ERRORS as exc:
+                target = row.fields.get(getattr(exc, "field", ""))
+                with self._quiet():
+                    if target is not None:
+                        target.show_error(str(exc))
+                    else:
+                        row.message.value = error_html(str(exc))
+                first_error = first_error or str(exc)
+        if first_error is not None:
+            self._set_valid(False, first_error)
+            self._store(None)
+        else:
+            self._set_valid(True, "")
+            self._store(tuple(out))
+        self._render_k()
+
+    # -- tuple of Fitting -> widgets
+    def _show(self, fittings) -> None:
+        if fittings is None:
+            return
+        fittings = tuple(fittings)
+        for f in fittings:
+            if not isinstance(f, core_fittings.Fitting):
+                raise TypeError(f"FittingList shows Fitting rows, not {type(f).__name__}")
+        self._set_rows([self._make_row(f.kind, f.count, dict(f.params), f.label or "")
+                        for f in fittings])
+
+    @traitlets.validate("value")
+    def _coerce(self, proposal):
+        v = proposal["value"]
+        return None if v is None else tuple(v)
+
+    def _after_show(self) -> None:
+        self._render_k()
+
+    # -- conditions and the K column
+    def set_conditions(self, Re: float, D: float, roughness: float) -> None:
+        """Set the Reynolds number [-], bore [m] and roughness [m] for the K column."""
+        self.Re, self.D, self.roughness = float(Re), float(D), float(roughness)
+        self._render_k()
+
+    def _render_system(self) -> None:
+        for row in self.rows:
+            row.set_system(self.system)
+        self._render_k()
+
+    def _render_k(self) -> None:
+        ready = None not in (self.Re, self.D, self.roughness)
+        fits = self.value
+        for i, row in enumerate(self.rows):
+            if not ready or fits is None:
+                row.k.value = '<span class="hl-k-text">K = —</span>'
+                continue
+            try:
+                K = float(np.asarray(core_fittings.fitting_K(
+                    fits[i], np.array([self.Re]), self.D, self.roughness))[0])
+            except KIT_ERRORS as exc:
+                row.k.value = '<span class="hl-k-text">K = —</span>'
+                row.message.value = error_html(str(exc))
+                continue
+            row.k.value = f'<span class="hl-k-text">K = {K:.3g}</span>'
+        if not ready:
+            self.total.value = "total K: — (no flow conditions yet)"
+            return
+        if fits is None:
+            self.total.value = "total K: — (correct the rows above)"
+            return
+        try:
+            total = float(np.asarray(core_fittings.fittings_K_total(
+                fits, np.array([self.Re]), self.D, self.roughness))[0]) if fits else 0.0
+        except KIT_ERRORS as exc:
+            self.message.value = error_html(str(exc))
+            self.total.value = "total K: —"
+            return
+        bore = units.fmt(self.D, "diameter", self.system, digits=4)
+        self.total.value = (f'<span class="hl-k-total-text">total K = {total:.4g}</span> '
+                            f"(referred to bore {html.escape(bore)}, Re = {self.Re:.3g})")

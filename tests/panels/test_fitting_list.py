@@ -1,0 +1,89 @@
+"""FittingList driven from Python: rows in, Fitting tuples and the K column out.
+
+Skipped until ``kit.core.fittings`` exists. The K column is the core's own number (this tests
+the wiring); the one reference check is the definition of a fixed-K row: count × K.
+"""
+
+import numpy as np
+import pytest
+
+fittings = pytest.importorskip("kit.core.fittings")
+
+from kit.panels.fitting_list import FittingList  # noqa: E402
+
+KINDS = list(fittings.FITTING_KINDS)
+PARAMS = [(k, p.name) for k in KINDS for p in fittings.FITTING_KINDS[k].params]
+COND = {"Re": 1.0e5, "D": 0.1023, "roughness": 4.5e-5}
+
+
+def events(panel):
+    seen = []
+    panel.observe(lambda change: seen.append(change["new"]), names="value")
+    return seen
+
+
+def _fixed(K=0.5, count=2, label="strainer"):
+    return fittings.Fitting("fixed_k", count, {"K": K}, label)
+
+
+def test_fixed_k_row_shows_count_times_k():
+    fl = FittingList([_fixed()], **COND)
+    assert fl.value == (_fixed(),)
+    assert "K = 1<" in fl.rows[0].k.value  # 2 × 0.5: definition of a fixed K per fitting
+    assert "total K = 1<" in fl.total.value
+
+
+def test_add_duplicate_remove_and_count_fire_one_event_each():
+    fl = FittingList([_fixed()], **COND)
+    seen = events(fl)
+    fl.add.click()
+    assert len(fl.rows) == 2 and len(seen) == 1
+    fl.rows[0].duplicate.click()
+    assert len(fl.rows) == 3 and fl.value[1] == fl.value[0] and len(seen) == 2
+    fl.rows[1].remove.click()
+    assert len(fl.rows) == 2 and len(seen) == 3
+    fl.rows[0].count.value = 5
+    assert fl.value[0].count == 5 and len(seen) == 4
+
+
+@pytest.mark.parametrize("kind", KINDS)
+def test_each_kind_builds_its_parameter_fields_and_method(kind):
+    fl = FittingList([_fixed()], **COND)
+    row = fl.rows[0]
+    row.kind.value = kind
+    assert list(row.fields) == [p.name for p in fittings.FITTING_KINDS[kind].params]
+    assert row.method.value  # the method applied is shown
+    if fl.value is not None:
+        K = fittings.fitting_K(fl.value[0], np.array([COND["Re"]]), COND["D"], COND["roughness"])
+        assert f"K = {float(K[0]):.3g}<" in row.k.value
+
+
+@pytest.mark.parametrize("text", ["abc", "12 kg/s", "1e999", "--2"])
+@pytest.mark.parametrize(("kind", "name"), PARAMS)
+def test_bad_parameter_text_shows_message_and_keeps_text(kind, name, text):
+    fl = FittingList([_fixed()], **COND)
+    row = fl.rows[0]
+    row.kind.value = kind
+    field = row.fields[name]
+    field.set_text(text)
+    assert field.input.value == text
+    assert fl.value is None and fl.valid is False
+    assert field.message.value and field.field in field.error
+
+
+def test_set_value_and_conditions():
+    fl = FittingList()
+    assert fl.value == ()
+    seen = events(fl)
+    fl.value = [_fixed(1.5, 1, "")]
+    assert fl.value == (_fixed(1.5, 1, ""),) and len(seen) == 1
+    assert "no flow conditions" in fl.total.value
+    fl.set_conditions(**COND)
+    assert "total K = 1.5<" in fl.total.value
+    fl.set_system("US")
+    assert "4.028 in" in fl.total.value  # 102.3 mm / 25.4 (NIST SP 811)
+
+
+def test_refuses_wrong_type():
+    with pytest.raises(TypeError, match="Fitting"):
+        FittingList(["a gate valve"])
