@@ -5,6 +5,7 @@
 - ``run``   execute the scenario's notebook headless and write the notebook, its HTML and
   the record (HTML + JSON) into a folder.
 - ``check`` re-run a record's scenario with the installed kit and compare every result.
+- ``refresh`` re-execute the committed notebooks and strip their widget state.
 """
 
 from __future__ import annotations
@@ -54,7 +55,7 @@ def _lab(argv) -> int:
 
 def main(argv=None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
-    commands = {"demo": _demo, "lab": _lab, "run": None, "check": None}
+    commands = {"demo": _demo, "lab": _lab, "run": None, "check": None, "refresh": None}
     if not argv or argv[0] not in commands:
         print(__doc__.strip(), file=sys.stderr)
         return 2
@@ -67,6 +68,10 @@ def main(argv=None) -> int:
         from kit.record.check import check_main
 
         return check_main(rest)
+    if cmd == "refresh":
+        from kit.refresh import refresh_main
+
+        return refresh_main(rest)
     return commands[cmd](rest)
 
 
