@@ -1,0 +1,667 @@
+"""Fittings: one row of a fitting list, and the K it yields at a given Re and bore.
+
+A :class:`Fitting` row is a kind (a key of :data:`FITTING_KINDS`), a count, and the kind's
+parameters in SI (angles in degrees, Cv and Kv in their trade units). :func:`fitting_K`
+returns the row's total K (count × K) **referred to the bore D of the pipe the row sits in**,
+over an array of Reynolds numbers (Re of that same pipe).
+
+Each kind names its method and source (fluids applies them; this module chooses the inputs):
+
+- fixed K, or a tee K that may be negative (converging/diverging junction flows);
+- Hooper's 2-K method (Hooper 1981, Chem. Eng.), Di in **inches** — converted here;
+- Darby's 3-K method (Silverberg & Darby 1999; Darby 2001, Chem. Eng.), **nominal** inches,
+  found from the bore along the Sch 40 table as fluids does — converted here;
+- geometry: entrances, exit, bends, mitres, contractions and enlargements
+  (Rennels & Hudson 2012 *Pipe Flow* by default; Crane TP-410 (2009), Idel'chik, others);
+- valves by type (Crane TP-410 (2009), K = N·fT with fT from ``fluids.fittings.ft_Crane``);
+- a valve flow coefficient Cv (US gpm/psi^0.5) or Kv (m³/h/bar^0.5).
+
+Traps of fluids that this module guards (and tests):
+
+- ``Hooper2K`` wants Di in inches; a call with metres is ~8.5× wrong, silently.
+- ``Darby3K`` wants nominal inches (or ``Di`` in metres, then interpolated along Sch 40).
+- contraction and diffuser K refer to the **smaller** pipe, and a reversed direction returns
+  nonsense (−214.6) silently: a contraction's D2 must be smaller than the row's bore, an
+  enlargement's larger, and K is converted to the row's bore with ``change_K_basis``.
+- ``bend_rounded`` without roughness assumes a smooth pipe, without rc assumes R/D = 5: both
+  are always passed.
+
+Friction factors inside geometric methods (bends, conical reducers) are Colebrook (Clamond's
+exact solution) evaluated at ``max(Re, RE_FD_FLOOR)``, as fluids does for Re above the floor;
+the floor keeps K finite as flow → 0 (Colebrook has no meaning there anyway). Most K methods
+are for turbulent flow; laminar K rises (the Hooper and Darby K1/Re terms model that).
+
+Example
+-------
+>>> import numpy as np
+>>> elbow = Fitting("bend", count=2, params={"angle": 90.0, "R_D": 1.5}, label="elbows")
+>>> K = fitting_K(elbow, np.array([1e5]), D=0.1023, roughness=4.5e-5)
+>>> round(float(K[0]), 3)
+0.487
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterator, Mapping
+from dataclasses import dataclass, field
+from functools import lru_cache
+from math import pi, sin, sqrt
+
+import fluids.fittings as ff
+import numpy as np
+from fluids.numerics import interp
+from fluids.piping import NPS40, S40i
+
+from kit.core.friction import colebrook_clamond
+from kit.errors import (
+    InputError,
+    NoSolutionError,
+    OutOfRangeError,
+    UnknownChoiceError,
+    check_choice,
+    check_range,
+)
+
+__all__ = [
+    "ParamSpec", "FittingKind", "FrozenParams", "Fitting", "FITTING_KINDS", "HOOPER_NAMES",
+    "DARBY_NAMES", "RE_FD_FLOOR", "D_RANGE", "fitting_K", "fittings_K_total", "describe",
+    "SOURCES",
+]
+
+#: Re below which friction factors inside fitting methods are held at their value here [-].
+RE_FD_FLOOR = 10.0
+#: Allowed bore of the pipe a row sits in [m]: (low exclusive, high inclusive).
+D_RANGE = (0.0, 5.0)
+_INCH = 0.0254
+
+#: Full citations, keyed by short name.
+SOURCES = {
+    "Crane": "Crane Co. Flow of Fluids Through Valves, Fittings, and Pipe. Technical Paper "
+             "No. 410 (TP-410), 2009; as implemented in fluids.fittings",
+    "Rennels": "Rennels, D. C., and Hudson, H. M. Pipe Flow: A Practical and Comprehensive "
+               "Guide. Hoboken, N.J.: Wiley, 2012; as implemented in fluids.fittings",
+    "Hooper": "Hooper, W. B. 'The 2-K Method Predicts Head Losses in Pipe Fittings.' Chem. "
+              "Eng., Aug. 24, 1981, p. 97; constants from fluids.fittings.Hooper",
+    "Darby": "Silverberg, P., and Darby, R. 'Correlate Pressure Drops through Fittings.' Chem. "
+             "Eng. 106(7), July 1999, p. 101; Darby, R., Chem. Eng. 108(4), April 2001, "
+             "127-130; constants from fluids.fittings.Darby",
+    "Idelchik": "Idel'chik, I. E. Handbook of Hydraulic Resistance. 1966 (transl.); as "
+                "implemented in fluids.fittings",
+    "Miller": "Miller, D. S. Internal Flow Systems. Gulf Publishing, 1990; as implemented in "
+              "fluids.fittings",
+    "Blevins": "Blevins, R. D. Applied Fluid Dynamics Handbook. Van Nostrand Reinhold, 1984; "
+               "as implemented in fluids.fittings",
+    "Swamee": "Swamee, P. K., and Sharma, A. K. Design of Water Supply Pipe Networks. Wiley, "
+              "2008; as implemented in fluids.fittings",
+    "Harris": "Harris, C. W. Elimination of Hydraulic Eddy Current Loss at Intake. University "
+              "of Washington, 1930; as implemented in fluids.fittings",
+    "Ito": "Ito, H. 'Pressure Losses in Smooth Pipe Bends.' J. Basic Eng. 82(1), 1960, "
+           "131-140, doi:10.1115/1.3662501; as implemented in fluids.fittings",
+    "ISA": "ISA-75.01.01-2007 (IEC 60534-2-1 mod.), flow-coefficient conversion; as "
+           "implemented in fluids.fittings.Cv_to_K / Kv_to_K",
+    "given": "K given by the user (its source is the user's)",
+}
+
+#: Fitting names of Hooper's 2-K database (fluids.fittings.Hooper), as choices.
+HOOPER_NAMES: tuple[str, ...] = tuple(ff.Hooper)
+#: Fitting names of Darby's 3-K database (fluids.fittings.Darby), as choices.
+DARBY_NAMES: tuple[str, ...] = tuple(ff.Darby)
+
+
+@dataclass(frozen=True)
+class ParamSpec:
+    """One parameter of a fitting kind: name, unit, allowed range or choices, default.
+
+    ``default=None`` means the parameter is required. Numeric ranges follow
+    :func:`kit.errors.check_range` (either bound may be open).
+    """
+
+    name: str
+    unit: str
+    label: str
+    low: float | None = None
+    high: float | None = None
+    low_inclusive: bool = False
+    high_inclusive: bool = True
+    choices: tuple | None = None
+    default: float | str | None = None
+
+    def check(self, value, row: str):
+        """Return the checked value (float or choice) or raise naming the row and parameter."""
+        fieldname = f"{self.name} (fitting {row})"
+        if self.choices is not None:
+            return check_choice(fieldname, value, self.choices)
+        if isinstance(value, (bool, str)) or value is None:
+            raise OutOfRangeError(fieldname, value, self.unit, self.low, self.high,
+                                  self.low_inclusive, self.high_inclusive)
+        return check_range(fieldname, value, self.unit, self.low, self.high,
+                           self.low_inclusive, self.high_inclusive)
+
+
+@dataclass(frozen=True)
+class FittingKind:
+    """One kind of fitting row.
+
+    Attributes
+    ----------
+    key, label : str
+        Our key and the trade words shown for it.
+    method : str
+        'fixed K', 'Hooper 2-K', 'Darby 3-K', 'geometry', 'Crane valve', 'Cv' or 'Kv'.
+    params : tuple of ParamSpec
+    source : str
+        Full citation of the default method.
+    allow_negative : bool
+        True only where a negative K is legitimate (tee flows).
+    compute : callable
+        ``(params: dict, Re: ndarray, D: float, roughness: float) -> K`` for one fitting,
+        referred to D.
+    """
+
+    key: str
+    label: str
+    method: str
+    params: tuple
+    source: str
+    compute: Callable = field(repr=False, compare=False)
+    allow_negative: bool = False
+
+    def spec(self, name: str) -> ParamSpec:
+        for p in self.params:
+            if p.name == name:
+                return p
+        raise UnknownChoiceError(f"parameter of '{self.key}'", name, [p.name for p in self.params])
+
+
+class FrozenParams(Mapping):
+    """A read-only, hashable mapping of parameter name → value (float or str)."""
+
+    __slots__ = ("_items",)
+
+    def __init__(self, items=()):
+        data = dict(items.items() if isinstance(items, Mapping) else items)
+        object.__setattr__(self, "_items", tuple(sorted(data.items())))
+
+    def __getitem__(self, key):
+        for k, v in self._items:
+            if k == key:
+                return v
+        raise KeyError(key)
+
+    def __iter__(self) -> Iterator:
+        return (k for k, _ in self._items)
+
+    def __len__(self) -> int:
+        return len(self._items)
+
+    def __hash__(self) -> int:
+        return hash(self._items)
+
+    def __setattr__(self, name, value):
+        raise AttributeError("FrozenParams is read-only")
+
+    def __repr__(self) -> str:
+        return f"FrozenParams({dict(self._items)!r})"
+
+
+# ---------------------------------------------------------------- helpers
+
+def _fd(Re, D, roughness):
+    """Colebrook friction factor (Clamond) at max(Re, RE_FD_FLOOR), as an array."""
+    return colebrook_clamond(np.maximum(Re, RE_FD_FLOOR), roughness / D)
+
+
+@lru_cache(maxsize=8192)
+def _call(fname: str, kwargs: tuple) -> float:
+    """A cached scalar call of a fluids.fittings function (pure function of its inputs)."""
+    return float(getattr(ff, fname)(**dict(kwargs)))
+
+
+def _scalar(fname: str, **kwargs) -> float:
+    return _call(fname, tuple(sorted(kwargs.items())))
+
+
+def _per_re(fname: str, Re, **kwargs):
+    """Evaluate a Re-dependent fluids function element-wise (once per distinct Re)."""
+    Re = np.maximum(Re, RE_FD_FLOOR)
+    uniq, inv = np.unique(Re, return_inverse=True)
+    vals = np.array([_scalar(fname, Re=float(r), **kwargs) for r in uniq])
+    return vals[inv].reshape(Re.shape)
+
+
+def _row(fitting) -> str:
+    return fitting.label or fitting.kind
+
+
+# ---------------------------------------------------------------- computations (one fitting)
+
+def _k_fixed(p, Re, D, eps):
+    return p["K"]
+
+
+def _k_hooper(p, Re, D, eps):
+    # Hooper (1981): K = K1/Re + K∞ (1 + 1/Di[in]); Di in INCHES.
+    K1, Kinf = ff.Hooper[p["name"]]
+    return K1 / Re + Kinf * (1.0 + _INCH / D)
+
+
+def _darby_nps(D: float) -> float:
+    """Nominal size [in] for a bore [m], linear along the Sch 40 table (as fluids.Darby3K)."""
+    return float(interp(D * 1e3, S40i, NPS40, extrapolate=True))
+
+
+def _k_darby(p, Re, D, eps):
+    # Darby 3-K: K = K1/Re + Ki (1 + Kd / NPS^0.3); NPS in NOMINAL inches.
+    K1, Ki, Kd = ff.Darby[p["name"]]
+    nps = _darby_nps(D)
+    if nps <= 0.0:
+        raise OutOfRangeError("pipe inside diameter (Darby 3-K)", D, "m", low=S40i[0] * 1e-3)
+    return K1 / Re + Ki * (1.0 + Kd * nps ** -0.3)
+
+
+def _k_entrance_sharp(p, Re, D, eps):
+    return _scalar("entrance_sharp", method=p["method"])
+
+
+def _k_entrance_rounded(p, Re, D, eps):
+    return _scalar("entrance_rounded", Di=D, rc=p["rc"], method=p["method"])
+
+
+def _k_entrance_projecting(p, Re, D, eps):
+    return _scalar("entrance_distance", Di=D, t=p["t"], method=p["method"])
+
+
+def _k_exit(p, Re, D, eps):
+    return _scalar("exit_normal")
+
+
+def _k_bend(p, Re, D, eps):
+    m = p["method"]
+    if m == "Rennels":
+        # Rennels & Hudson (2012), vectorized; fluids' bend_rounded(method='Rennels').
+        a = p["angle"] * pi / 180.0
+        rD = p["R_D"]
+        fd = _fd(Re, D, eps)
+        s = np.sin(0.5 * a)
+        return (fd * a * rD + (0.10 + 2.4 * fd) * s
+                + 6.6 * fd * (sqrt(s) + s) / rD ** (4.0 * a / pi))
+    kw = dict(Di=D, angle=p["angle"], bend_diameters=p["R_D"], method=m)
+    if m in ("Ito", "Miller"):
+        return _per_re("bend_rounded", Re, roughness=eps, **kw)
+    return _scalar("bend_rounded", **kw)
+
+
+def _k_mitre(p, Re, D, eps):
+    m = p["method"]
+    if m == "Blevins":
+        return _per_re("bend_miter", Re, angle=p["angle"], method=m)
+    if m == "Crane":
+        return _scalar("bend_miter", angle=p["angle"], Di=D, method=m)
+    return _scalar("bend_miter", angle=p["angle"], method=m)
+
+
+def _reducer_D2(p, D, row, larger: bool) -> float:
+    D2 = p["D2"]
+    fieldname = f"D2 (fitting {row})"
+    if larger and not D2 > D:
+        raise OutOfRangeError(fieldname, D2, "m", low=D, high=D_RANGE[1])
+    if not larger and not D2 < D:
+        raise OutOfRangeError(fieldname, D2, "m", low=0.0, high=D, high_inclusive=False)
+    return D2
+
+
+def _k_contraction(p, Re, D, eps, row=""):
+    D2 = _reducer_D2(p, D, row, larger=False)
+    Re2 = Re * D / D2  # Re in the smaller bore (same flow)
+    if p["style"] == "sudden":
+        K_small = _scalar("contraction_sharp", Di1=D, Di2=D2, method=p["method"])
+    elif p["method"] == "Rennels":
+        # Rennels & Hudson (2012): K = fd (1 - β⁴) / (8 sin(θ/2)) + K_conv; K_conv from fluids
+        # (fd = 0), the friction term vectorized with fd in the smaller bore at its Re.
+        beta = D2 / D
+        s = sin(0.5 * p["angle"] * pi / 180.0)
+        K_conv = _scalar("contraction_conical", Di1=D, Di2=D2, angle=p["angle"], fd=0.0,
+                         method="Rennels")
+        K_small = K_conv + _fd(Re2, D2, eps) * (1.0 - beta ** 4) / (8.0 * s)
+    else:
+        K_small = _scalar("contraction_conical", Di1=D, Di2=D2, angle=p["angle"], method="Crane")
+    # fluids' K refers to the smaller pipe D2; refer it to the row's bore D.
+    return ff.change_K_basis(K_small, D2, D)
+
+
+def _k_enlargement(p, Re, D, eps, row=""):
+    D2 = _reducer_D2(p, D, row, larger=True)
+    if p["style"] == "sudden":
+        if p["method"] == "Rennels":
+            K_small = _scalar("diffuser_sharp", Di1=D, Di2=D2, method="Rennels")
+        else:
+            K_small = _scalar("diffuser_conical", Di1=D, Di2=D2, angle=180.0, method="Crane")
+    elif p["method"] == "Rennels":
+        # Rennels & Hudson (2012): expansion part from fluids (fd = 0); friction term
+        # 0.125 fd (1 - β⁴) / sin(θ/2) for θ <= 60°, vectorized, fd with ε/D2 as fluids does.
+        beta = D / D2
+        K_small = _scalar("diffuser_conical", Di1=D, Di2=D2, angle=p["angle"], fd=0.0,
+                          method="Rennels")
+        if p["angle"] <= 60.0:
+            s = sin(0.5 * p["angle"] * pi / 180.0)
+            K_small = K_small + 0.125 * _fd(Re, D2, eps) * (1.0 - beta ** 4) / s
+    else:
+        K_small = _scalar("diffuser_conical", Di1=D, Di2=D2, angle=p["angle"], method="Crane")
+    # fluids' K refers to the smaller pipe, which here is the row's own bore D.
+    return ff.change_K_basis(K_small, D, D)
+
+
+def _valve(fname: str, *, seat=False, angle=False, style=None, style_arg="style",
+           disc=False):
+    """Build a compute function for a Crane TP-410 valve (fT from ft_Crane(D))."""
+
+    def compute(p, Re, D, eps):
+        kw = {}
+        if seat:
+            kw.update(D1=p["beta"] * D, D2=D)
+        else:
+            kw.update(D=D)
+        if angle:
+            kw["angle"] = p["angle"]
+        if disc:
+            kw["angle"] = float(p["disc_angle"].split()[0])
+        if style is not None:
+            kw[style_arg] = style[p["style"]]
+        return _scalar(fname, **kw)
+
+    return compute
+
+
+# ---------------------------------------------------------------- registry
+
+_NONNEG_K = ParamSpec("K", "-", "loss coefficient K", 0.0, 1e4, low_inclusive=True)
+_BETA = ParamSpec("beta", "-", "seat bore / pipe bore", 0.05, 1.0, default=1.0)
+_TAPER = ParamSpec("angle", "deg", "included taper angle of the reduced seat", 0.0, 180.0,
+                   default=180.0)
+_STYLE_RED = ParamSpec("style", "-", "reducer shape", choices=("sudden", "conical"),
+                       default="sudden")
+_CONE = ParamSpec("angle", "deg", "included cone angle (conical style)", 0.0, 180.0,
+                  default=180.0)
+_METH_RED = ParamSpec("method", "-", "method", choices=("Rennels", "Crane"), default="Rennels")
+
+
+def _m(choices, default="Rennels"):
+    return ParamSpec("method", "-", "method", choices=tuple(choices), default=default)
+
+
+_KINDS = (
+    FittingKind("fixed_k", "Loss coefficient K given", "fixed K",
+                (_NONNEG_K,), SOURCES["given"], _k_fixed),
+    FittingKind("tee_k", "Tee, run or branch (K given, may be negative)", "fixed K",
+                (ParamSpec("K", "-", "loss coefficient K", -1.0, 100.0, low_inclusive=True),),
+                SOURCES["given"] + "; junction K can be negative for converging/diverging "
+                "flows (Rennels & Hudson 2012)", _k_fixed, allow_negative=True),
+    FittingKind("hooper_2k", "Fitting from Hooper's 2-K list", "Hooper 2-K",
+                (ParamSpec("name", "-", "fitting", choices=HOOPER_NAMES),),
+                SOURCES["Hooper"], _k_hooper),
+    FittingKind("darby_3k", "Fitting from Darby's 3-K list", "Darby 3-K",
+                (ParamSpec("name", "-", "fitting", choices=DARBY_NAMES),),
+                SOURCES["Darby"], _k_darby),
+    FittingKind("entrance_sharp", "Entrance from a tank, square-edged (flush)", "geometry",
+                (_m(("Rennels", "Crane", "Idelchik", "Blevins", "Miller", "Swamee")),),
+                SOURCES["Rennels"], _k_entrance_sharp),
+    FittingKind("entrance_rounded", "Entrance from a tank, rounded (bellmouth)", "geometry",
+                (ParamSpec("rc", "m", "radius of rounding", 0.0, 5.0),
+                 _m(("Rennels", "Crane", "Idelchik", "Harris", "Miller", "Swamee"))),
+                SOURCES["Rennels"], _k_entrance_rounded),
+    FittingKind("entrance_projecting", "Entrance from a tank, pipe projecting inward "
+                "(re-entrant)", "geometry",
+                (ParamSpec("t", "m", "wall thickness of the projecting pipe", 0.0, 0.5),
+                 _m(("Rennels", "Crane", "Idelchik", "Harris", "Miller"))),
+                SOURCES["Rennels"], _k_entrance_projecting),
+    FittingKind("exit", "Exit into a tank or large space (K = 1)", "geometry", (),
+                "fluids.fittings.exit_normal: full loss of the velocity head, K = 1 "
+                "(Rennels & Hudson 2012)", _k_exit),
+    FittingKind("bend", "Bend or elbow, smooth radius", "geometry",
+                (ParamSpec("angle", "deg", "bend angle", 0.0, 180.0),
+                 ParamSpec("R_D", "-", "bend radius / bore (R/D)", 0.5, 50.0, low_inclusive=True),
+                 _m(("Rennels", "Crane", "Crane standard", "Ito", "Miller", "Swamee"))),
+                SOURCES["Rennels"], _k_bend),
+    FittingKind("mitre", "Mitre bend, single joint", "geometry",
+                (ParamSpec("angle", "deg", "deflection angle", 0.0, 150.0),
+                 _m(("Rennels", "Crane", "Blevins"))),
+                SOURCES["Rennels"], _k_mitre),
+    FittingKind("contraction", "Reducer to a smaller bore D2 (contraction)", "geometry",
+                (ParamSpec("D2", "m", "downstream (smaller) bore", *D_RANGE), _STYLE_RED, _CONE,
+                 _METH_RED),
+                SOURCES["Rennels"], _k_contraction),
+    FittingKind("enlargement", "Expander to a larger bore D2 (enlargement, diffuser)",
+                "geometry",
+                (ParamSpec("D2", "m", "downstream (larger) bore", *D_RANGE), _STYLE_RED, _CONE,
+                 _METH_RED),
+                SOURCES["Rennels"], _k_enlargement),
+    FittingKind("valve_gate", "Gate valve, fully open", "Crane valve", (_BETA, _TAPER),
+                SOURCES["Crane"], _valve("K_gate_valve_Crane", seat=True, angle=True)),
+    FittingKind("valve_globe", "Globe valve, fully open", "Crane valve", (_BETA,),
+                SOURCES["Crane"], _valve("K_globe_valve_Crane", seat=True)),
+    FittingKind("valve_ball", "Ball valve, fully open", "Crane valve", (_BETA, _TAPER),
+                SOURCES["Crane"], _valve("K_ball_valve_Crane", seat=True, angle=True)),
+    FittingKind("valve_butterfly", "Butterfly valve, fully open", "Crane valve",
+                (ParamSpec("style", "-", "disc design",
+                           choices=("centric", "double offset", "triple offset"),
+                           default="centric"),),
+                SOURCES["Crane"],
+                _valve("K_butterfly_valve_Crane",
+                       style={"centric": 0, "double offset": 1, "triple offset": 2})),
+    FittingKind("valve_plug", "Plug valve, fully open", "Crane valve",
+                (_BETA, _TAPER,
+                 ParamSpec("style", "-", "body", choices=(
+                     "straight-through", "3-way, flow straight through", "3-way, flow 90 deg"),
+                     default="straight-through")),
+                SOURCES["Crane"],
+                _valve("K_plug_valve_Crane", seat=True, angle=True,
+                       style={"straight-through": 0, "3-way, flow straight through": 1,
+                              "3-way, flow 90 deg": 2})),
+    FittingKind("valve_check_swing", "Swing check valve", "Crane valve",
+                (ParamSpec("style", "-", "body (angled N = 100, straight N = 50)",
+                           choices=("angled", "straight"), default="angled"),),
+                SOURCES["Crane"],
+                _valve("K_swing_check_valve_Crane", style={"angled": True, "straight": False},
+                       style_arg="angled")),
+    FittingKind("valve_check_lift", "Lift check valve", "Crane valve",
+                (_BETA, ParamSpec("style", "-", "body (angled N = 55, straight N = 600)",
+                                  choices=("angled", "straight"), default="angled")),
+                SOURCES["Crane"],
+                _valve("K_lift_check_valve_Crane", seat=True,
+                       style={"angled": True, "straight": False}, style_arg="angled")),
+    FittingKind("valve_check_tilting", "Tilting-disc check valve", "Crane valve",
+                (ParamSpec("disc_angle", "-", "disc resting angle",
+                           choices=("5 deg", "15 deg"), default="5 deg"),),
+                SOURCES["Crane"], _valve("K_tilting_disk_check_valve_Crane", disc=True)),
+    FittingKind("valve_diaphragm", "Diaphragm valve, fully open", "Crane valve",
+                (ParamSpec("style", "-", "body", choices=("weir", "straight-through"),
+                           default="weir"),),
+                SOURCES["Crane"],
+                _valve("K_diaphragm_valve_Crane", style={"weir": 0, "straight-through": 1})),
+    FittingKind("valve_foot", "Foot valve with strainer", "Crane valve",
+                (ParamSpec("style", "-", "disc", choices=("poppet disc", "hinged disc"),
+                           default="poppet disc"),),
+                SOURCES["Crane"],
+                _valve("K_foot_valve_Crane", style={"poppet disc": 0, "hinged disc": 1})),
+    FittingKind("valve_cv", "Valve with a given Cv", "Cv",
+                (ParamSpec("Cv", "US gpm/psi^0.5", "flow coefficient Cv", 0.0, 1e6),),
+                SOURCES["ISA"], lambda p, Re, D, eps: ff.Cv_to_K(p["Cv"], D)),
+    FittingKind("valve_kv", "Valve with a given Kv", "Kv",
+                (ParamSpec("Kv", "m3/h/bar^0.5", "flow coefficient Kv", 0.0, 1e6),),
+                SOURCES["ISA"], lambda p, Re, D, eps: ff.Kv_to_K(p["Kv"], D)),
+)
+
+#: The fitting kinds, keyed by our keys.
+FITTING_KINDS: dict[str, FittingKind] = {k.key: k for k in _KINDS}
+
+_NEEDS_ROW = {"contraction", "enlargement"}
+
+
+# ---------------------------------------------------------------- the row
+
+@dataclass(frozen=True)
+class Fitting:
+    """One row of a fitting list: kind, count, parameters (SI), label.
+
+    Construction checks the row: the kind is known, the count is a whole number ≥ 1, every
+    parameter is known, present (or defaulted) and in range. Errors name the row (its label,
+    or its kind) and the parameter. ``params`` is stored complete (defaults filled in) as a
+    hashable :class:`FrozenParams`, so ``Fitting(**row.as_dict()) == row``.
+
+    Example
+    -------
+    >>> Fitting("valve_gate").params["beta"]
+    1.0
+    """
+
+    kind: str
+    count: int = 1
+    params: Mapping = field(default_factory=FrozenParams)
+    label: str = ""
+
+    def __post_init__(self):
+        object.__setattr__(self, "label", str(self.label))
+        row = _row(self)
+        check_choice(f"fitting kind (fitting {self.label})" if self.label else "fitting kind",
+                     self.kind, FITTING_KINDS)
+        kind = FITTING_KINDS[self.kind]
+        count = self.count
+        cfield = f"count (fitting {row})"
+        if isinstance(count, bool) or not isinstance(count, (int, float, np.integer)):
+            raise InputError(cfield, count, "must be a whole number of at least 1")
+        if not float(count).is_integer():
+            raise InputError(cfield, count, "must be a whole number of at least 1")
+        check_range(cfield, count, None, low=1, low_inclusive=True)
+        object.__setattr__(self, "count", int(count))
+        given = dict(self.params.items()) if isinstance(self.params, Mapping) else dict(self.params)
+        names = [p.name for p in kind.params]
+        for name in given:
+            if name not in names:
+                raise UnknownChoiceError(f"parameter (fitting {row}, kind {self.kind})", name,
+                                         names)
+        full = {}
+        for spec in kind.params:
+            if spec.name in given:
+                full[spec.name] = spec.check(given[spec.name], row)
+            elif spec.default is not None:
+                full[spec.name] = spec.default
+            else:
+                raise InputError(f"{spec.name} (fitting {row})", None,
+                                 f"is required for kind '{self.kind}' ({spec.label} "
+                                 f"[{spec.unit}])")
+        object.__setattr__(self, "params", FrozenParams(full))
+
+    def as_dict(self) -> dict:
+        """``{kind, count, params, label}`` with plain values; ``Fitting(**d)`` reads it back."""
+        return {"kind": self.kind, "count": self.count, "params": dict(self.params),
+                "label": self.label}
+
+
+# ---------------------------------------------------------------- K
+
+def _check_inputs(Re, D, roughness):
+    Re = np.asarray(Re, dtype=float)
+    bad = ~np.isfinite(Re) | (Re <= 0.0)
+    if np.any(bad):
+        raise OutOfRangeError("Reynolds number", float(Re[bad].flat[0]), None, low=0.0)
+    D = check_range("pipe inside diameter", D, "m", *D_RANGE)
+    roughness = check_range("pipe roughness", roughness, "m", 0.0, 0.01, low_inclusive=True)
+    return Re, D, roughness
+
+
+def fitting_K(fitting: Fitting, Re, D: float, roughness: float) -> np.ndarray:
+    """Total loss coefficient of a fitting row (count × K), referred to bore ``D``.
+
+    Applies the row kind's published method (see :data:`FITTING_KINDS` and
+    :func:`describe`): Hooper (1981) 2-K, Darby (2001) 3-K, Rennels & Hudson (2012) geometry
+    by default, Crane TP-410 (2009) valves, Idel'chik and others by choice, or the ISA
+    conversion of Cv/Kv. Re-dependent methods are evaluated element-wise (Hooper, Darby and
+    the Rennels bend with numpy; the others once per distinct Re); Re-independent K are
+    computed once and cached.
+
+    Parameters
+    ----------
+    fitting : Fitting
+        The row [-]
+    Re : array_like
+        Reynolds number in the pipe of bore ``D``, > 0 [-]
+    D : float
+        Inside diameter of the pipe the row sits in, 0 < D <= 5 m [m]
+    roughness : float
+        Absolute roughness of that pipe, 0 to 10 mm [m]
+
+    Returns
+    -------
+    K : ndarray
+        count × K, referred to the velocity head in bore ``D``, shaped like ``Re`` [-]
+
+    Notes
+    -----
+    Contractions need D2 < D and enlargements D2 > D (the row sits in the upstream pipe);
+    fluids' K on the smaller bore is converted with ``change_K_basis``. A negative K is
+    refused unless the kind allows it (tee flows).
+
+    Examples
+    --------
+    >>> round(float(fitting_K(Fitting("exit"), [1e5], 0.1, 4.5e-5)[0]), 3)
+    1.0
+
+    References
+    ----------
+    .. [1] Crane Co. Flow of Fluids Through Valves, Fittings, and Pipe. TP-410, 2009.
+    .. [2] Rennels, D. C., and Hudson, H. M. Pipe Flow. Wiley, 2012.
+    .. [3] Hooper, W. B. Chem. Eng., Aug. 24, 1981, p. 97.
+    .. [4] Darby, R. Chem. Eng. 108(4), 2001, 127-130.
+    """
+    if not isinstance(fitting, Fitting):
+        raise InputError("fitting", type(fitting).__name__, "must be a Fitting row")
+    Re, D, roughness = _check_inputs(Re, D, roughness)
+    kind = FITTING_KINDS[fitting.kind]
+    p = dict(fitting.params)
+    if fitting.kind in _NEEDS_ROW:
+        K = kind.compute(p, Re, D, roughness, row=_row(fitting))
+    else:
+        K = kind.compute(p, Re, D, roughness)
+    K = np.broadcast_to(np.asarray(K, dtype=float), Re.shape).copy()
+    if not kind.allow_negative and np.any(K < 0.0):
+        raise NoSolutionError(f"loss coefficient for fitting {_row(fitting)}",
+                              f"its method gave K = {float(K.min()):.4g} < 0 at bore {D:.4g} m; "
+                              "check the parameters")
+    if not np.all(np.isfinite(K)):
+        raise NoSolutionError(f"loss coefficient for fitting {_row(fitting)}",
+                              "its method gave a non-finite K")
+    return fitting.count * K
+
+
+def fittings_K_total(fittings, Re, D: float, roughness: float) -> np.ndarray:
+    """Sum of :func:`fitting_K` over rows, referred to bore ``D`` [-], shaped like ``Re``.
+
+    >>> rows = (Fitting("entrance_sharp", params={"method": "Crane"}), Fitting("exit"))
+    >>> float(fittings_K_total(rows, [1e5], 0.1, 4.5e-5)[0])
+    1.5
+    """
+    Re, D, roughness = _check_inputs(Re, D, roughness)
+    total = np.zeros_like(Re)
+    for f in fittings:
+        total = total + fitting_K(f, Re, D, roughness)
+    return total
+
+
+def describe(fitting: Fitting) -> dict:
+    """What a row is and how its K is found: label, kind label, method and source.
+
+    >>> describe(Fitting("bend", params={"angle": 90, "R_D": 1.5}))["method"]
+    'geometry: Rennels'
+    """
+    kind = FITTING_KINDS[fitting.kind]
+    method = kind.method
+    source = kind.source
+    chosen = fitting.params.get("method")
+    if chosen is not None:
+        method = f"{kind.method}: {chosen}"
+        source = SOURCES.get(chosen.split()[0], source)
+    if fitting.kind in ("contraction", "enlargement"):
+        method += f" ({fitting.params['style']})"
+    return {"label": fitting.label or kind.label, "kind": fitting.kind, "kind_label": kind.label,
+            "count": fitting.count, "method": method, "source": source,
+            "params": dict(fitting.params)}
