@@ -42,6 +42,7 @@ Example
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable, Iterator, Mapping
 from dataclasses import dataclass, field
 from functools import lru_cache
@@ -64,7 +65,7 @@ from kit.errors import (
 
 __all__ = [
     "ParamSpec", "FittingKind", "FrozenParams", "Fitting", "FITTING_KINDS", "HOOPER_NAMES",
-    "DARBY_NAMES", "RE_FD_FLOOR", "D_RANGE", "fitting_K", "fittings_K_total", "describe",
+    "DARBY_NAMES", "RE_FD_FLOOR", "D_RANGE", "fitting_K", "fittings_K_total", "total_K_unchecked", "describe",
     "SOURCES",
 ]
 
@@ -281,7 +282,7 @@ def _k_bend(p, Re, D, eps):
         # Rennels & Hudson (2012), vectorized; fluids' bend_rounded(method='Rennels').
         a = p["angle"] * pi / 180.0
         rD = p["R_D"]
-        fd = _fd(Re, D, eps)
+        fd = p["_fd"]() if "_fd" in p else _fd(Re, D, eps)
         s = np.sin(0.5 * a)
         return (fd * a * rD + (0.10 + 2.4 * fd) * s
                 + 6.6 * fd * (sqrt(s) + s) / rD ** (4.0 * a / pi))
@@ -616,20 +617,43 @@ def fitting_K(fitting: Fitting, Re, D: float, roughness: float) -> np.ndarray:
     if not isinstance(fitting, Fitting):
         raise InputError("fitting", type(fitting).__name__, "must be a Fitting row")
     Re, D, roughness = _check_inputs(Re, D, roughness)
+    return _row_K(fitting, Re, D, roughness)
+
+
+def _bad_K(fitting, K, D, kind):
+    if not np.isfinite(K).all():
+        raise NoSolutionError(f"loss coefficient for fitting {_row(fitting)}",
+                              "its method gave a non-finite K")
+    raise NoSolutionError(f"loss coefficient for fitting {_row(fitting)}",
+                          f"its method gave K = {float(K.min()):.4g} < 0 at bore {D:.4g} m; "
+                          "check the parameters")
+
+
+def _row_K(fitting: Fitting, Re: np.ndarray, D: float, roughness: float,
+           fd_memo=None) -> np.ndarray:
+    """:func:`fitting_K` without the input checks (inputs already checked by the caller).
+
+    ``fd_memo`` is a callable returning the pipe's Colebrook friction factor at ``Re``,
+    shared by the rows of one :func:`fittings_K_total` call so it is computed once.
+    """
     kind = FITTING_KINDS[fitting.kind]
     p = dict(fitting.params)
+    if fd_memo is not None:
+        p["_fd"] = fd_memo
     if fitting.kind in _NEEDS_ROW:
         K = kind.compute(p, Re, D, roughness, row=_row(fitting))
     else:
         K = kind.compute(p, Re, D, roughness)
-    K = np.broadcast_to(np.asarray(K, dtype=float), Re.shape).copy()
-    if not kind.allow_negative and np.any(K < 0.0):
-        raise NoSolutionError(f"loss coefficient for fitting {_row(fitting)}",
-                              f"its method gave K = {float(K.min()):.4g} < 0 at bore {D:.4g} m; "
-                              "check the parameters")
-    if not np.all(np.isfinite(K)):
-        raise NoSolutionError(f"loss coefficient for fitting {_row(fitting)}",
-                              "its method gave a non-finite K")
+    if np.ndim(K) == 0:  # Re-independent: check the one number, let numpy broadcast it
+        K = float(K)
+        if (K < 0.0 and not kind.allow_negative) or not math.isfinite(K):
+            _bad_K(fitting, np.array([K]), D, kind)
+        return np.full(Re.shape, fitting.count * K)
+    K = np.asarray(K, dtype=float)
+    if K.shape != Re.shape:
+        K = np.broadcast_to(K, Re.shape)
+    if (not kind.allow_negative and K.min(initial=0.0) < 0.0) or not np.isfinite(K).all():
+        _bad_K(fitting, K, D, kind)
     return fitting.count * K
 
 
@@ -641,9 +665,27 @@ def fittings_K_total(fittings, Re, D: float, roughness: float) -> np.ndarray:
     1.5
     """
     Re, D, roughness = _check_inputs(Re, D, roughness)
+    return total_K_unchecked(fittings, Re, D, roughness)
+
+
+def total_K_unchecked(fittings, Re: np.ndarray, D: float, roughness: float,
+                      fd: np.ndarray | None = None) -> np.ndarray:
+    """:func:`fittings_K_total` for inputs the caller has already checked (a float array
+    Re > 0, a valid bore and roughness); ``fd`` is the pipe's Darcy friction factor at
+    ``Re`` when the caller has it (the Rennels bend uses it instead of solving Colebrook
+    again). Used by :class:`kit.core.line.Line` on its hot path."""
     total = np.zeros_like(Re)
+    memo = [] if fd is None else [fd]
+
+    def fd_at():
+        if not memo:
+            memo.append(_fd(Re, D, roughness))
+        return memo[0]
+
     for f in fittings:
-        total = total + fitting_K(f, Re, D, roughness)
+        if not isinstance(f, Fitting):
+            raise InputError("fitting", type(f).__name__, "must be a Fitting row")
+        total = total + _row_K(f, Re, D, roughness, fd_at)
     return total
 
 

@@ -131,14 +131,15 @@ def darcy_friction(Re, rel_roughness):
     Trans. ASME 66(8), 671–684.
     """
     Re = np.asarray(Re, dtype=float)
-    eD = np.broadcast_to(np.asarray(rel_roughness, dtype=float), Re.shape)
+    eD = np.asarray(rel_roughness, dtype=float)
     with np.errstate(divide="ignore", invalid="ignore"):
-        lam = 64.0 / Re
-        turb = colebrook_clamond(np.maximum(Re, RE_TURBULENT), eD)
-        f4000 = colebrook_clamond(np.full(Re.shape, RE_TURBULENT), eD)
-    w = np.clip((Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR), 0.0, 1.0)
-    blend = (1.0 - w) * (64.0 / RE_LAMINAR) + w * f4000
-    out = np.where(Re < RE_LAMINAR, lam, np.where(Re > RE_TURBULENT, turb, blend))
+        out = colebrook_clamond(np.maximum(Re, RE_TURBULENT), eD)
+        out = np.where(Re < RE_LAMINAR, 64.0 / Re, out)
+    zone = (Re >= RE_LAMINAR) & (Re <= RE_TURBULENT)
+    if zone.any():
+        f4000 = colebrook_clamond(RE_TURBULENT, eD)
+        w = np.clip((Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR), 0.0, 1.0)
+        out = np.where(zone, (1.0 - w) * (64.0 / RE_LAMINAR) + w * f4000, out)
     return out if out.ndim else out[()]
 
 

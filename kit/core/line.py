@@ -25,6 +25,7 @@ Example
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
+from functools import cached_property
 
 import numpy as np
 
@@ -40,12 +41,12 @@ G = 9.80665
 RE_FLOOR = 1e-9
 
 
-def _fittings_K(fittings, Re, D, roughness):
+def _fittings_K(fittings, Re, D, roughness, fd=None):
     if not fittings:
         return np.zeros_like(Re)
-    from kit.core.fittings import fittings_K_total
+    from kit.core.fittings import total_K_unchecked
 
-    return np.asarray(fittings_K_total(fittings, Re, D, roughness), dtype=float)
+    return total_K_unchecked(fittings, np.asarray(Re, dtype=float), D, roughness, fd)
 
 
 @dataclass(frozen=True)
@@ -105,7 +106,7 @@ class Segment:
         eD = self.pipe.roughness / self.pipe.Di
         f = darcy_friction(Re, eD)
         vh = V * V / (2.0 * G)
-        K = _fittings_K(self.fittings, Re, self.pipe.Di, self.pipe.roughness)
+        K = _fittings_K(self.fittings, Re, self.pipe.Di, self.pipe.roughness, f)
         return f * (self.length / self.pipe.Di) * vh, K * vh, Re
 
     def head_loss(self, Q, state):
@@ -191,6 +192,13 @@ class Line:
     def length(self) -> float:
         return float(sum(s.length for s in self.segments))
 
+    @cached_property
+    def _arrays(self):
+        """Bore, area, roughness and length of every segment (the pipes are immutable)."""
+        segs = self.segments
+        return (np.array([s.pipe.Di for s in segs]), np.array([s.pipe.area for s in segs]),
+                np.array([s.pipe.roughness for s in segs]), np.array([s.length for s in segs]))
+
     def with_condition(self, condition: str) -> Line:
         """A copy with every pipe's roughness at ``condition`` ('new' or 'aged')."""
         segs = tuple(replace(s, pipe=s.pipe.with_condition(condition)) for s in self.segments)
@@ -219,10 +227,18 @@ class Line:
         Method: Darcy–Weisbach with :func:`~kit.core.friction.darcy_friction`, plus fittings.
         """
         Q = _flows(Q)
-        total = np.zeros(np.shape(Q))
-        for s in self.segments:
-            total = total + s.head_loss(Q, state)
-        return total
+        q = np.atleast_1d(Q).ravel()
+        segs = self.segments
+        D, A, eps, L = self._arrays
+        V = q[None, :] / A[:, None]
+        Re = np.maximum(state.rho * V * D[:, None] / state.mu, RE_FLOOR)
+        f = darcy_friction(Re, (eps / D)[:, None])
+        vh = V * V / (2.0 * G)
+        total = (f * (L / D)[:, None] * vh).sum(axis=0)
+        for i, s in enumerate(segs):
+            if s.fittings:
+                total = total + _fittings_K(s.fittings, Re[i], D[i], eps[i], f[i]) * vh[i]
+        return total.reshape(np.shape(Q))
 
     def profile(self, Q: float, state, p_start: float, p_baro: float = 101325.0) -> Profile:
         """Stations' pressure, HGL and EGL at flow ``Q`` [m³/s].
