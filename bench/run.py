@@ -98,7 +98,8 @@ def naive_curve(line, state, Q):
             for fit in s.fittings:
                 p = dict(fit.params)
                 if fit.kind == "bend":
-                    K += fit.count * bend_rounded(Di=D, angle=p["angle"], bend_diameters=p["R_D"], Re=Re, roughness=s.pipe.roughness)
+                    K += fit.count * bend_rounded(Di=D, angle=p["angle"], bend_diameters=p["R_D"],
+                                                  Re=Re, roughness=s.pipe.roughness)
                 elif fit.kind == "hooper_2k":
                     K += fit.count * Hooper2K(Di=D / 0.0254, Re=Re, name=p["name"])
                 else:
