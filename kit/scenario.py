@@ -25,7 +25,8 @@ A segment::
     rise = "18 m"
     pipe = { standard = "asme_b36_10m", nominal = "4", schedule = "40",
              material = "carbon_steel", condition = "new" }
-    fittings = [ { kind = "fixed_k", K = 0.5, count = 2, label = "strainer" } ]
+    fittings = [ { kind = "fixed_k", K = 0.5, count = 2, label = "strainer" },
+                 { kind = "bend", angle = 90, R_D = 1.5 } ]
 
 Example
 -------
@@ -189,19 +190,21 @@ def build_liquid(doc: dict):
     try:
         if "user" in sec:
             u = sec["user"]
-            T = [units.parse(t, "temperature", "liquid.user.temperature") for t in
-                 _as_list(u.get("temperature"), "liquid.user.temperature")]
-            rho = [units.parse(t, "density", "liquid.user.density") for t in
-                   _as_list(u.get("density"), "liquid.user.density")]
-            mu = [units.parse(t, "viscosity", "liquid.user.viscosity") for t in
-                  _as_list(u.get("viscosity"), "liquid.user.viscosity")]
-            pv = u.get("vapour_pressure")
-            pv = None if pv is None else [
-                units.parse(t, "pressure", "liquid.user.vapour_pressure")
-                for t in _as_list(pv, "liquid.user.vapour_pressure")]
-            return liquids.UserLiquid(u.get("name", "user liquid"), T=tuple(T), rho=tuple(rho),
-                                      mu=tuple(mu), pv=None if pv is None else tuple(pv),
-                                      flammable=bool(u.get("flammable", False)))
+            def column(key, kind, required=True):
+                raw = u.get(key)
+                if raw is None:
+                    if required:
+                        raise ScenarioError(f"liquid.user.{key}", "is missing")
+                    return None
+                vals = tuple(units.parse(t, kind, f"liquid.user.{key}") for t in _as_list(raw, key))
+                return vals if isinstance(raw, list) else vals[0]  # one value: a constant
+
+            T = column("temperature", "temperature")
+            return liquids.UserLiquid(
+                u.get("name", "user liquid"), T=T if isinstance(T, tuple) else (T,),
+                rho=column("density", "density"), mu=column("viscosity", "viscosity"),
+                pv=column("vapour_pressure", "pressure", required=False),
+                flammable=bool(u.get("flammable", False)))
         conc = sec.get("concentration")
         conc = None if conc is None else units.parse(conc, "fraction", "liquid.concentration")
         return liquids.make_liquid(sec.get("key"), conc)

@@ -97,10 +97,10 @@ def test_malformed_scenario_names_the_key(path, value, match):
 
 
 @pytest.mark.parametrize("text,match", [
-    ("schema = 'other/2'\nkind = 'line_sizing'\n", r"'schema': must be 'headline-scenario/1'"),
-    ("schema = 'headline-scenario/1'\nkind = 'boiler'\n", r"'kind': must be one of line_sizing"),
+    ("schema = 'other/2'\nkind = 'line_sizing'\n", r"'schema' in <string>: must be 'headline-scenario/1'"),
+    ("schema = 'headline-scenario/1'\nkind = 'boiler'\n", r"'kind' in <string>: must be one of line_sizing"),
     ("schema = 'headline-scenario/1'\nkind = 'line_sizing'\n[display]\nsystem = 'imperial'\n",
-     r"'display.system': must be 'SI' or 'US'"),
+     r"'display.system' in <string>: must be 'SI' or 'US'"),
     ("kind = = 3", r"is not valid TOML"),
 ])
 def test_malformed_file(text, match):
@@ -111,3 +111,20 @@ def test_malformed_file(text, match):
 def test_missing_file_names_the_path(tmp_path):
     with pytest.raises(ScenarioError, match=r"cannot be read"):
         scn.load(tmp_path / "nope.toml")
+
+
+def test_user_liquid_constants_and_tables():
+    # one value is a constant over the stated temperature range; a list is a table
+    doc = {"liquid": {"temperature": "20 degC", "user": {
+        "name": "light oil", "temperature": ["0 degC", "50 degC"], "density": "870 kg/m**3",
+        "viscosity": ["12 cP", "4 cP"]}}}
+    liquid = scn.build_liquid(doc)
+    st = liquid.state(293.15)
+    assert st.rho == pytest.approx(870.0)
+    # log-linear viscosity between the two points, by hand: exp(ln12 + 0.4 (ln4 - ln12))
+    import math
+    assert st.mu == pytest.approx(math.exp(math.log(12e-3) + 0.4 * math.log(4 / 12)), rel=1e-9)
+    assert st.pv is None
+    with pytest.raises(ScenarioError, match=r"'liquid.user.density': is missing"):
+        scn.build_liquid({"liquid": {"user": {"temperature": ["0 degC", "5 degC"],
+                                              "viscosity": "1 cP"}}})
