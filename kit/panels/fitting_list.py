@@ -84,7 +84,10 @@ class FittingRow(widgets.VBox):
     label : ipywidgets.Text
         Free text naming the row ("strainer").
     fields : dict of str -> QuantityField
-        One field per parameter of the kind (rebuilt when the kind changes).
+        One field per numeric parameter of the kind (rebuilt when the kind changes).
+    choices : dict of str -> ipywidgets.Dropdown
+        One dropdown per parameter with a list of choices (a Hooper or Darby name, a method,
+        a valve style).
     method, k : ipywidgets.HTML
         The method applied (CSS ``hl-method``) and the row's K (``hl-k``).
     message : ipywidgets.HTML
@@ -113,6 +116,7 @@ class FittingRow(widgets.VBox):
         self.method.add_class("hl-method")
         self.message = error_widget()
         self.fields: dict[str, QuantityField] = {}
+        self.choices: dict[str, widgets.Dropdown] = {}
         top = widgets.HBox([self.kind, widgets.Label("×"), self.count, self.label, self.k,
                             self.duplicate, self.remove])
         super().__init__([top, self.param_box, self.method, self.message])
@@ -123,12 +127,25 @@ class FittingRow(widgets.VBox):
         """(Re)build the parameter fields for the current kind, filled from ``params`` (SI)."""
         kind = self.kind.value
         self.fields = {}
+        self.choices = {}
+        shown = []
         for p in _params(kind):
             value = params.get(p.name, _param_default(p))
+            if getattr(p, "choices", None):
+                dd = widgets.Dropdown(options=[str(c) for c in p.choices],
+                                      value=str(value) if value in p.choices else None,
+                                      description=_param_label(p),
+                                      layout=widgets.Layout(width="auto"),
+                                      style={"description_width": "initial"})
+                dd.add_class("hl-fitting-choice")
+                self.choices[p.name] = dd
+                shown.append(dd)
+                continue
             self.fields[p.name] = QuantityField(
                 _param_kind(p), _param_label(p), value_si=None if value is None else float(value),
                 system=self.system, field=p.name, width="8em")
-        self.param_box.children = tuple(self.fields.values())
+            shown.append(self.fields[p.name])
+        self.param_box.children = tuple(shown)
         self.method.value = f'<span class="hl-method-text">{html.escape(_method_text(kind))}</span>'
 
     def read(self):
@@ -137,6 +154,10 @@ class FittingRow(widgets.VBox):
             if not f.valid or f.value is None:
                 raise _RowInvalid(f.error or f"'{f.field}' is required")
         params = {name: f.value for name, f in self.fields.items()}
+        for name, dd in self.choices.items():
+            if dd.value is None:
+                raise _RowInvalid(f"'{name}' must be chosen")
+            params[name] = dd.value
         return core_fittings.Fitting(self.kind.value, int(self.count.value), params,
                                      self.label.value)
 
@@ -221,18 +242,23 @@ class FittingList(Panel):
     def _wire_fields(self, row: FittingRow) -> None:
         for f in row.fields.values():
             f.observe(self._on_change, names=["value", "valid"])
+        for dd in row.choices.values():
+            dd.observe(self._on_change, names="value")
 
     def _set_rows(self, rows) -> None:
         self.rows = list(rows)
         self.rows_box.children = tuple(self.rows)
 
     def _on_add(self, _button=None) -> None:
+        # the new row's required fields start empty: the list is invalid until they are filled
+        # (a guessed K would enter the calculation unseen)
         first = next(iter(core_fittings.FITTING_KINDS))
         self._set_rows([*self.rows, self._make_row(first)])
         self._recompute()
 
     def _on_duplicate(self, row: FittingRow) -> None:
         params = {n: f.value for n, f in row.fields.items()}
+        params.update({n: dd.value for n, dd in row.choices.items()})
         copy = self._make_row(row.kind.value, row.count.value, params, row.label.value)
         with self._quiet():
             for src, dst in zip(row.fields.values(), copy.fields.values(), strict=True):

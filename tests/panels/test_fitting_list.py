@@ -12,7 +12,8 @@ fittings = pytest.importorskip("kit.core.fittings")
 from kit.panels.fitting_list import FittingList  # noqa: E402
 
 KINDS = list(fittings.FITTING_KINDS)
-PARAMS = [(k, p.name) for k in KINDS for p in fittings.FITTING_KINDS[k].params]
+PARAMS = [(k, p.name) for k in KINDS for p in fittings.FITTING_KINDS[k].params if not p.choices]
+CHOICES = [(k, p.name) for k in KINDS for p in fittings.FITTING_KINDS[k].params if p.choices]
 COND = {"Re": 1.0e5, "D": 0.1023, "roughness": 4.5e-5}
 
 
@@ -37,13 +38,15 @@ def test_add_duplicate_remove_and_count_fire_one_event_each():
     fl = FittingList([_fixed()], **COND)
     seen = events(fl)
     fl.add.click()
-    assert len(fl.rows) == 2 and len(seen) == 1
+    assert len(fl.rows) == 2 and len(seen) == 1 and fl.value is None  # empty K: not guessed
+    fl.rows[1].fields["K"].set_text("0.3")
+    assert fl.value[1] == fittings.Fitting("fixed_k", 1, {"K": 0.3}) and len(seen) == 2
     fl.rows[0].duplicate.click()
-    assert len(fl.rows) == 3 and fl.value[1] == fl.value[0] and len(seen) == 2
+    assert len(fl.rows) == 3 and fl.value[1] == fl.value[0] and len(seen) == 3
     fl.rows[1].remove.click()
-    assert len(fl.rows) == 2 and len(seen) == 3
+    assert len(fl.rows) == 2 and len(seen) == 4
     fl.rows[0].count.value = 5
-    assert fl.value[0].count == 5 and len(seen) == 4
+    assert fl.value[0].count == 5 and len(seen) == 5
 
 
 @pytest.mark.parametrize("kind", KINDS)
@@ -51,7 +54,9 @@ def test_each_kind_builds_its_parameter_fields_and_method(kind):
     fl = FittingList([_fixed()], **COND)
     row = fl.rows[0]
     row.kind.value = kind
-    assert list(row.fields) == [p.name for p in fittings.FITTING_KINDS[kind].params]
+    specs = fittings.FITTING_KINDS[kind].params
+    assert list(row.fields) == [p.name for p in specs if not p.choices]
+    assert list(row.choices) == [p.name for p in specs if p.choices]
     assert row.method.value  # the method applied is shown
     if fl.value is not None:
         K = fittings.fitting_K(fl.value[0], np.array([COND["Re"]]), COND["D"], COND["roughness"])
@@ -69,6 +74,18 @@ def test_bad_parameter_text_shows_message_and_keeps_text(kind, name, text):
     assert field.input.value == text
     assert fl.value is None and fl.valid is False
     assert field.message.value and field.field in field.error
+
+
+@pytest.mark.parametrize(("kind", "name"), CHOICES)
+def test_choice_parameters_are_dropdowns_of_the_kinds_choices(kind, name):
+    fl = FittingList([_fixed()], **COND)
+    row = fl.rows[0]
+    row.kind.value = kind
+    spec = next(p for p in fittings.FITTING_KINDS[kind].params if p.name == name)
+    assert tuple(row.choices[name].options) == tuple(str(c) for c in spec.choices)
+    row.choices[name].value = str(spec.choices[-1])
+    if fl.value is not None:
+        assert fl.value[0].params[name] == spec.choices[-1]
 
 
 def test_set_value_and_conditions():
