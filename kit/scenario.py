@@ -90,6 +90,21 @@ class Scenario:
     def get(self, path: str, default=None):
         return get(self.doc, path, default)
 
+    def self_contained(self) -> Scenario:
+        """A copy whose files referred to by name (``[batch] file``) are carried inline as
+        ``text``, so the scenario recomputes anywhere (the record stores this form)."""
+        out = self.copy()
+        file = get(out.doc, "batch.file")
+        if file and "text" not in out.doc.get("batch", {}):
+            base = Path(self.source).parent if self.source not in ("<memory>", "<string>") \
+                else Path.cwd()
+            try:
+                out.doc["batch"]["text"] = (base / file).read_text(encoding="utf-8")
+            except OSError as exc:
+                raise ScenarioError("batch.file", f"cannot be read: {exc.strerror}",
+                                    self.source) from None
+        return out
+
 
 def get(doc: dict, path: str, default=None):
     """Read a dotted key from a nested dict, or ``default``."""

@@ -29,6 +29,7 @@ from __future__ import annotations
 
 import math
 import re
+from functools import lru_cache
 
 import pint
 
@@ -281,8 +282,23 @@ def convert(value_si: float, kind: str, unit: str) -> float:
         if unit in per:
             return value_si / per[unit]
     if si_unit == "K" or unit in ("degC", "degF"):
-        return float(ureg.Quantity(value_si, si_unit).m_as(unit))
-    return float((value_si * ureg.Quantity(1.0, si_unit)).m_as(unit))
+        scale, offset = _affine(si_unit, unit)
+        return value_si * scale + offset
+    return value_si * _factor(si_unit, unit)
+
+
+@lru_cache(maxsize=256)
+def _factor(si_unit: str, unit: str) -> float:
+    """Multiplier from ``si_unit`` to ``unit`` (pint, once per pair)."""
+    return float(ureg.Quantity(1.0, si_unit).m_as(unit))
+
+
+@lru_cache(maxsize=32)
+def _affine(si_unit: str, unit: str) -> tuple[float, float]:
+    """(scale, offset) of an offset conversion such as K → °F, from two points by pint."""
+    a = float(ureg.Quantity(0.0, si_unit).m_as(unit))
+    b = float(ureg.Quantity(1.0, si_unit).m_as(unit))
+    return b - a, a
 
 
 def fmt(value_si: float, kind: str, system: str = "SI", unit: str | None = None,

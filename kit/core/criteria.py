@@ -62,7 +62,7 @@ class DutyClass:
         else:
             sev, rule = Severity.PASS, f"{self.label}: velocity within range"
         out.append(Finding(sev, subject, "velocity", V, "m/s",
-                           f"{self.v_min:g}–{self.v_max:g} m/s", rule, self.source))
+                           f"{self.v_min:.3g}–{self.v_max:.3g} m/s", rule, self.source))
         if dp_per_m > self.dp_max:
             sev, rule = Severity.FAIL, f"{self.label}: pressure drop above limit"
         elif dp_per_m > self.dp_max * (1 - MARGINAL_FRACTION):
@@ -70,7 +70,7 @@ class DutyClass:
         else:
             sev, rule = Severity.PASS, f"{self.label}: pressure drop within limit"
         out.append(Finding(sev, subject, "pressure drop per length", dp_per_m, "Pa/m",
-                           f"<= {self.dp_max * 100 / 1000:g} kPa/100 m", rule, self.source))
+                           f"<= {self.dp_max * 100 / 1000:.3g} kPa/100 m", rule, self.source))
         return out
 
 

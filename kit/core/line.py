@@ -330,11 +330,11 @@ def vapour_findings(profile: Profile, pv: float | None, margin_head: float = 2.0
                            "pressure; flow breaks", "definition of vapour pressure"))
     elif margin < margin_head:
         out.append(Finding(Severity.CHECK, subject, "pressure above vapour pressure", margin, "m",
-                           f">= {margin_head:g} m", "lowest pressure close to vapour pressure",
+                           f">= {margin_head:.3g} m", "lowest pressure close to vapour pressure",
                            src))
     else:
         out.append(Finding(Severity.PASS, subject, "pressure above vapour pressure", margin, "m",
-                           f">= {margin_head:g} m", "lowest pressure clear of vapour pressure",
+                           f">= {margin_head:.3g} m", "lowest pressure clear of vapour pressure",
                            src))
     if low.p < profile.p_baro and low.p > pv:
         out.append(Finding(Severity.CHECK, subject, "gauge pressure", low.p_gauge, "Pa",

@@ -4,35 +4,51 @@ erosional-velocity and vapour-pressure criteria, with the recommended size and t
 A :class:`Route` is a developed length with an elevation profile (named points along it) and
 the route's fittings. For each candidate bore the route becomes a
 :class:`~kit.core.line.Line` — one segment per leg of the profile — and the head loss is
-Darcy–Weisbach (:mod:`kit.core.friction`). The route's fittings are lumped in the **first**
-leg: losses then appear as early as possible along the route, which is conservative for the
+Darcy–Weisbach (:mod:`kit.core.friction`, Colebrook by Clamond's exact solution) plus the
+fittings' K (:mod:`kit.core.fittings`). The route's fittings are lumped in the **first** leg:
+losses then appear as early as possible along the route, which is conservative for the
 lowest-pressure check at downstream high points.
 
-The pressure at the end of the route is given (a vented receiving tank: atmospheric); the
+The pressure at the end of the route is given (a vented receiving tank: atmospheric). The
 pressure needed at the start, and the pressure at every station, follow from the energy
-equation with the loss term.
+equation with the loss term, worked back from the end (one bore throughout, so the velocity
+heads cancel):
+
+.. math:: p_i = p_{i+1} + \\rho g (z_{i+1} - z_i) + \\rho g\\, h_{L,i \\to i+1}
+
+With an ``exit`` fitting in the route the end pressure is the receiving vessel's; the start
+pressure then carries the outlet velocity head as well (conservative by ρV²/2), and station
+pressures downstream of the first leg are exact.
+
+The lowest pressure is searched over the minimum, design and maximum flows: at a high point
+downstream, less flow means less friction between it and the end, hence a lower pressure.
 
 Example
 -------
->>> from types import SimpleNamespace as NS
->>> r = Route(length=100.0, points=(("end", 100.0, 5.0),))
+>>> r = Route(length=100.0, points=(("crest", 40.0, 6.0), ("end", 100.0, 5.0)))
 >>> r.legs()
-[('end', 100.0, 5.0)]
+[('crest', 40.0, 6.0), ('end', 60.0, -1.0)]
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 import numpy as np
 
 from kit.core.criteria import DutyClass, erosional_findings
 from kit.core.findings import Finding, Severity, worst
-from kit.core.friction import darcy_friction
-from kit.core.line import G, Line, Segment, vapour_findings
+from kit.core.friction import darcy_friction, transition_findings
+from kit.core.line import G, Line, Profile, Segment, Station, vapour_findings
 from kit.errors import HeadlineError, InputError, check_range
 
-__all__ = ["Route", "Candidate", "SizingResult", "size_line", "batch_friction"]
+__all__ = ["Route", "Candidate", "SizingResult", "size_line", "batch_friction",
+           "route_profiles", "FLOW_RANGE", "NO_PV_SOURCE"]
+
+#: Allowed flows [m³/s]: (low exclusive, high inclusive).
+FLOW_RANGE = (0.0, 100.0)
+#: Source text of the finding made when a liquid has no vapour-pressure model.
+NO_PV_SOURCE = "kit policy: a vapour pressure is needed for the lowest-pressure check"
 
 
 @dataclass(frozen=True)
@@ -42,13 +58,22 @@ class Route:
     Parameters
     ----------
     length : float
-        Developed length from start to end [m].
+        Developed length from start to end, 0 < L <= 1e6 m [m]
     points : tuple of (name, chainage [m], elevation [m])
-        Named points along the route in order of chainage; the last is the end of the
-        route. Elevations are absolute; the start is at ``start_elevation``.
+        Named points along the route in increasing chainage; the last is the end of the
+        route and its chainage must equal ``length``. Elevations are absolute; empty means a
+        level route ending at ``start_elevation`` [-]
     fittings : tuple of Fitting
+        Every fitting along the route (lumped in the first leg) [-]
     start_elevation : float
-        Elevation of the start [m].
+        Elevation of the start [m]
+    start_name : str
+        Name of the start station [-]
+
+    Examples
+    --------
+    >>> Route(50.0).legs()
+    [('end', 50.0, 0.0)]
     """
 
     length: float
@@ -59,16 +84,20 @@ class Route:
 
     def __post_init__(self):
         check_range("route length", self.length, "m", low=0.0, high=1e6)
+        check_range("start elevation", self.start_elevation, "m", low=-1e4, high=1e4)
+        object.__setattr__(self, "points", tuple(tuple(p) for p in self.points))
+        object.__setattr__(self, "fittings", tuple(self.fittings))
         last = 0.0
-        for name, x, _z in self.points:
+        for name, x, z in self.points:
             check_range(f"chainage of '{name}'", x, "m", low=last, high=self.length)
+            check_range(f"elevation of '{name}'", z, "m", low=-1e4, high=1e4)
             last = x
-        if self.points and abs(self.points[-1][1] - self.length) > 1e-9:
+        if self.points and abs(self.points[-1][1] - self.length) > 1e-9 * max(1.0, self.length):
             raise InputError("chainage of the last profile point", self.points[-1][1],
                              f"must equal the route length {self.length:g} m", "m")
 
     def legs(self) -> list[tuple[str, float, float]]:
-        """(end name, leg length, rise) for each leg of the profile."""
+        """(end name, leg length [m], rise [m]) for each leg of the profile."""
         pts = self.points or (("end", self.length, self.start_elevation),)
         out, x0, z0 = [], 0.0, self.start_elevation
         for name, x, z in pts:
@@ -77,17 +106,41 @@ class Route:
         return out
 
     def line(self, pipe, name: str = "route") -> Line:
+        """The route in one bore: a :class:`~kit.core.line.Line`, one segment per leg."""
         segs = []
         for i, (end, length, rise) in enumerate(self.legs()):
-            fits = tuple(self.fittings) if i == 0 else ()
-            segs.append(Segment(f"{self.start_name}→{end}" if i == 0 else end, pipe, length,
-                                rise, fits, end_station=end))
+            fits = self.fittings if i == 0 else ()
+            segs.append(Segment(end, pipe, length, rise, fits, end_station=end))
         return Line(name, tuple(segs), self.start_name, self.start_elevation)
 
 
 @dataclass(frozen=True)
 class Candidate:
-    """One candidate size at the design flow (SI)."""
+    """One candidate size (SI): the numbers at the design flow and the checks.
+
+    Attributes
+    ----------
+    pipe : Pipe
+    velocity, velocity_min, velocity_max : float
+        Mean velocity at the design, minimum and maximum flow [m/s].
+    Re, friction : float
+        Reynolds number and Darcy friction factor at the design flow [-].
+    dp_per_m : float
+        Friction pressure drop per length at the design flow [Pa/m].
+    head_loss : float
+        Total head loss of the route (pipe and fittings) at the design flow [m].
+    p_start : float
+        Pressure needed at the start at the design flow [Pa abs].
+    lowest_station : str
+        Station of the lowest pressure over the flow range.
+    p_lowest : float
+        That pressure [Pa abs].
+    Q_lowest : float
+        The flow at which it occurs [m³/s].
+    findings : tuple of Finding
+    error : str
+        The kit's message when the candidate could not be computed ('' otherwise).
+    """
 
     pipe: object
     velocity: float
@@ -100,23 +153,126 @@ class Candidate:
     p_start: float
     lowest_station: str
     p_lowest: float
+    Q_lowest: float
     findings: tuple
     error: str = ""
 
     @property
     def verdict(self) -> str:
+        """'pass', 'check' or 'fail' (the worst finding); 'fail' for an error."""
         if self.error:
             return "fail"
         return worst(self.findings).value
 
+    @property
+    def governing(self) -> str:
+        """The rules behind the verdict, in words ('all criteria met' for a pass)."""
+        if self.error:
+            return self.error
+        sev = worst(self.findings)
+        if sev is Severity.PASS:
+            return "all criteria met"
+        rules = []
+        for f in self.findings:
+            if f.severity is sev and f.rule not in rules:
+                rules.append(f.rule)
+        return "; ".join(rules)
+
 
 @dataclass(frozen=True)
 class SizingResult:
+    """Every candidate, the recommended one and why, and each candidate's design profile.
+
+    ``profiles[i]`` is the :class:`~kit.core.line.Profile` of candidate ``i`` at the design
+    flow and ``range_profiles[i]`` its profiles at the minimum, design and maximum flows
+    (None where the candidate failed to compute).
+    """
+
     candidates: tuple
     recommended: int | None
     reason: str
-    profile: object = None
-    findings: tuple = field(default=())
+    profiles: tuple = ()
+    duty: DutyClass | None = None
+    range_profiles: tuple = ()
+
+    @property
+    def profile(self):
+        """The recommended candidate's design-flow profile (or None)."""
+        return None if self.recommended is None else self.profiles[self.recommended]
+
+    @property
+    def findings(self) -> tuple:
+        """The recommended candidate's findings (empty when there is none)."""
+        return () if self.recommended is None else self.candidates[self.recommended].findings
+
+
+def route_profiles(line: Line, state, Q, p_end: float, p_baro: float = 101325.0):
+    """Station pressures, HGL and EGL along a one-bore line for several flows, worked back
+    from a given end pressure by the energy equation with the loss term (Bernoulli).
+
+    Parameters
+    ----------
+    line : Line
+        One bore throughout (the velocity heads cancel station to station) [-]
+    state : LiquidState
+        rho [kg/m³] and mu [Pa·s] [-]
+    Q : array_like
+        Flows, >= 0 [m³/s]
+    p_end : float
+        Static pressure at the end station [Pa abs]
+    p_baro : float
+        Barometric pressure for gauge values and HGL [Pa]
+
+    Returns
+    -------
+    profiles : list of Profile
+        One per flow [-]
+    head_loss : ndarray
+        Total head loss per flow [m]
+
+    Notes
+    -----
+    Head loss per segment from :meth:`Line.segment_losses` (Darcy–Weisbach with Colebrook,
+    plus fittings), evaluated once for all flows. HGL = z + (p − p_baro)/(ρg);
+    EGL = HGL + V²/(2g).
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as NS
+    >>> pipe = NS(Di=0.1023, area=np.pi / 4 * 0.1023**2, roughness=4.5e-5)
+    >>> water = NS(rho=998.2, mu=1.002e-3)
+    >>> line = Route(100.0).line(pipe)
+    >>> profs, hl = route_profiles(line, water, [0.01], 101325.0)
+    >>> round(profs[0].stations[0].hgl, 3)
+    1.44
+    """
+    Q = np.atleast_1d(np.asarray(Q, dtype=float))
+    seg = line.segment_losses(Q, state)                   # (n_seg, n_Q) [m]
+    rise = np.array([s.rise for s in line.segments])
+    rho = state.rho
+    # pressure at each station from the end backwards: p_k = p_end + rho g sum_{j>=k}(rise+hl)
+    per = (rise[:, None] + seg) * rho * G                 # (n_seg, n_Q) [Pa]
+    after = np.cumsum(per[::-1], axis=0)[::-1]            # from segment k to the end
+    p = np.vstack([after, np.zeros((1, Q.size))]) + p_end  # (n_seg + 1, n_Q)
+    names = [line.start_station] + [s.station for s in line.segments]
+    x = np.concatenate([[0.0], np.cumsum([s.length for s in line.segments])])
+    z = line.start_elevation + np.concatenate([[0.0], np.cumsum(rise)])
+    area = line.segments[0].pipe.area
+    out = []
+    for j, q in enumerate(Q):
+        V = q / area
+        st = []
+        for k, name in enumerate(names):
+            hgl = z[k] + (p[k, j] - p_baro) / (rho * G)
+            st.append(Station(name, float(x[k]), float(z[k]), float(p[k, j]),
+                              float(p[k, j] - p_baro), V, float(hgl), float(hgl + V * V / (2 * G))))
+        out.append(Profile(line.name, float(q), tuple(st), p_baro, rho))
+    return out, seg.sum(axis=0)
+
+
+def _flow(name: str, value, low, low_inclusive=False) -> float:
+    return check_range(name, value, "m³/s", low=low, high=FLOW_RANGE[1],
+                       low_inclusive=low_inclusive)
 
 
 def size_line(route: Route, state, Q_design: float, pipes, duty: DutyClass,
@@ -125,92 +281,193 @@ def size_line(route: Route, state, Q_design: float, pipes, duty: DutyClass,
               vapour_margin: float = 2.0, erosional_C: float = 100.0) -> SizingResult:
     """Check every candidate pipe for a duty and recommend the smallest that passes.
 
+    Each candidate: velocity Q/A, Reynolds number, Darcy–Weisbach friction with Colebrook
+    (1939) solved by Clamond (2009), fittings K, total head loss, the station pressures over
+    the flow range, and findings against the duty class (common practice, no source), the
+    API RP 14E (1991) erosional velocity and the vapour pressure with a margin.
+
     Parameters
     ----------
     route : Route
+        Length, elevation profile and fittings [-]
     state : LiquidState
-        rho [kg/m³], mu [Pa·s], pv [Pa] or None (then the vapour check is skipped with a
-        CHECK finding asking for a value).
+        rho [kg/m³], mu [Pa·s], pv [Pa] or None (then the lowest-pressure check is a CHECK
+        asking for a value) [-]
     Q_design : float
-        Design flow [m³/s]; ``Q_min``/``Q_max`` the range [m³/s] (velocities reported).
+        Design flow, 0 < Q <= 100 m³/s [m³/s]
     pipes : sequence of Pipe
-        Candidates, smallest first.
+        Candidates, smallest first [-]
     duty : DutyClass
-        Velocity and pressure-drop criteria.
+        Velocity and pressure-drop criteria [-]
+    Q_min, Q_max : float, optional
+        Flow range, Q_min <= Q_design <= Q_max (default: the design flow) [m³/s]
     p_end : float
-        Pressure at the end of the route [Pa abs].
+        Pressure at the end of the route [Pa abs]
+    p_baro : float
+        Barometric pressure [Pa]
+    vapour_margin : float
+        Required margin of the lowest pressure above vapour pressure [m of liquid]
+    erosional_C : float
+        API RP 14E constant C (100 continuous, 125 intermittent) [-]
 
     Returns
     -------
-    SizingResult
-        Candidates in the order given, the index of the recommended one (smallest bore with
-        no FAIL and no CHECK; else smallest with no FAIL), and the reason in words.
+    result : SizingResult
+        Candidates in the order given, the index of the recommended one and the reason [-]
 
     Notes
     -----
-    Methods: Darcy–Weisbach, Colebrook (Clamond 2009), duty-class criteria (common practice),
-    API RP 14E erosional velocity, vapour-pressure margin along the route profile.
+    Verdicts: at the design flow, above ``v_max`` or ``dp_max`` fails, within 10 % of either
+    or below ``v_min`` is a check (see :class:`~kit.core.criteria.DutyClass`); at the
+    maximum flow, above ``v_max`` or ``dp_max`` is a check; above the erosional velocity at
+    the maximum flow fails; the lowest pressure over the flow range at or below vapour
+    pressure fails, within the margin or below atmospheric is a check; a Reynolds number in
+    the transition zone (2000–4000) is a check.
+    The recommended size is the smallest whose verdict is *pass*; if none passes, the
+    smallest whose verdict is *check*; if all fail, none.
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as NS
+    >>> from kit.core.criteria import DUTY_CLASSES
+    >>> def pipe(D):
+    ...     return NS(Di=D, area=np.pi / 4 * D * D, roughness=4.5e-5, label=f"{D * 1e3:.0f} mm")
+    >>> water = NS(rho=998.2, mu=1.002e-3, pv=2339.0)
+    >>> res = size_line(Route(100.0), water, 0.01, [pipe(0.05), pipe(0.08), pipe(0.1)],
+    ...                 DUTY_CLASSES["pump_discharge"], p_end=2e5)
+    >>> res.candidates[res.recommended].pipe.label
+    '100 mm'
+
+    References
+    ----------
+    .. [1] Colebrook, C. F. (1939). J. Inst. Civil Eng. 11(4), 133–156.
+    .. [2] Clamond, D. (2009). Ind. Eng. Chem. Res. 48(7), 3665–3671.
+    .. [3] API RP 14E (1991), 5th ed., sec. 2.5.
     """
-    Q = check_range("design flow", Q_design, "m³/s", low=0.0, high=100.0)
-    Q_min = Q if Q_min is None else check_range("minimum flow", Q_min, "m³/s", low=0.0, high=Q,
-                                                low_inclusive=True)
-    Q_max = Q if Q_max is None else check_range("maximum flow", Q_max, "m³/s", low=Q, high=100.0,
-                                                low_inclusive=True)
-    out = []
-    profiles = []
+    Q = _flow("design flow", Q_design, FLOW_RANGE[0])
+    Q_min = Q if Q_min is None else _flow("minimum flow", Q_min, 0.0, True)
+    if Q_min > Q:
+        raise InputError("minimum flow", Q_min, f"must not exceed the design flow {Q:.6g} m³/s",
+                         "m³/s")
+    Q_max = Q if Q_max is None else _flow("maximum flow", Q_max, Q, True)
+    check_range("end pressure", p_end, "Pa", low=0.0, high=1e8, low_inclusive=True)
+    check_range("vapour-pressure margin", vapour_margin, "m", low=0.0, high=1e3,
+                low_inclusive=True)
+    flows = np.array([Q_min, Q, Q_max])
+    labels = ("at minimum flow", "at design flow", "at maximum flow")
+    out, profiles = [], []
     for pipe in pipes:
         try:
-            line = route.line(pipe)
-            hl = float(line.head_loss(np.array([Q]), state)[0])
-            V = Q / pipe.area
-            Re = state.rho * V * pipe.Di / state.mu
-            f = float(darcy_friction(Re, pipe.roughness / pipe.Di))
-            dp_per_m = f * state.rho * V * V / (2 * pipe.Di)
-            # energy equation from start to end, one bore throughout (velocity heads cancel)
-            p_start = p_end + state.rho * G * (line.rise + hl)
-            prof = line.profile(Q, state, p_start, p_baro)
-            subject = f"{getattr(pipe, 'label', 'pipe')}"
-            found = duty.check(subject, V, dp_per_m)
-            found += erosional_findings(subject, V, state.rho, erosional_C)
-            if state.pv is None:
-                found.append(Finding(Severity.CHECK, subject, "vapour pressure", float("nan"),
-                                     "Pa", "a value is required", "no vapour-pressure model for "
-                                     "this liquid: lowest-pressure check not made",
-                                     "kit policy"))
-            else:
-                found += vapour_findings(prof, state.pv, vapour_margin, subject)
-            low = prof.lowest
-            out.append(Candidate(pipe, V, Q_min / pipe.area, Q_max / pipe.area, Re, f, dp_per_m,
-                                 hl, p_start, low.name, low.p, tuple(found)))
-            profiles.append(prof)
+            c, profs = _candidate(route, state, pipe, duty, flows, labels, p_end, p_baro,
+                                  vapour_margin, erosional_C)
         except HeadlineError as exc:
-            out.append(Candidate(pipe, *([float("nan")] * 8), "", float("nan"), (), str(exc)))
-            profiles.append(None)
+            nan = float("nan")
+            c, profs = Candidate(pipe, Q / pipe.area, Q_min / pipe.area, Q_max / pipe.area,
+                                 nan, nan, nan, nan, nan, "", nan, nan, (), str(exc)), None
+        out.append(c)
+        profiles.append(profs)
     rec, reason = _recommend(out, duty)
-    return SizingResult(tuple(out), rec, reason, profiles[rec] if rec is not None else None,
-                        out[rec].findings if rec is not None else ())
+    return SizingResult(tuple(out), rec, reason, tuple(p and p[1] for p in profiles), duty,
+                        tuple(profiles))
+
+
+def _candidate(route, state, pipe, duty, flows, labels, p_end, p_baro, margin, C):
+    line = route.line(pipe)
+    Q_min, Q, Q_max = flows
+    profs, hl = route_profiles(line, state, flows, p_end, p_baro)
+    V = flows / pipe.area
+    Re = state.rho * V * pipe.Di / state.mu
+    eD = pipe.roughness / pipe.Di
+    f = np.asarray(darcy_friction(np.maximum(Re, 1e-9), eD), dtype=float)
+    dp = f * state.rho * V * V / (2.0 * pipe.Di)
+    subject = str(getattr(pipe, "label", "pipe"))
+    found = duty.check(subject, float(V[1]), float(dp[1]))
+    if Q_max > Q:
+        found += _at_max(duty, subject, float(V[2]), float(dp[2]))
+    found += erosional_findings(subject + (f", {labels[2]}" if Q_max > Q else ""),
+                                float(V[2]), state.rho, C)
+    found += transition_findings(subject, Re[flows > 0])
+    j_low = int(np.argmin([p.lowest.p for p in profs]))
+    low = profs[j_low].lowest
+    where = f"{subject}, station '{low.name}'"
+    if Q_min < Q or Q_max > Q:
+        where += f" {labels[j_low]}"
+    if state.pv is None:
+        found.append(Finding(Severity.CHECK, where, "pressure above vapour pressure",
+                             float("nan"), "m", "a vapour pressure is required",
+                             "no vapour-pressure model for this liquid: lowest-pressure check "
+                             "not made", NO_PV_SOURCE))
+    else:
+        found += vapour_findings(profs[j_low], state.pv, margin, where)
+    cand = Candidate(pipe, float(V[1]), float(V[0]), float(V[2]), float(Re[1]), float(f[1]),
+                     float(dp[1]), float(hl[1]), profs[1].stations[0].p, low.name, low.p,
+                     float(flows[j_low]), tuple(found))
+    return cand, tuple(profs)
+
+
+def _at_max(duty: DutyClass, subject: str, V: float, dp: float) -> list[Finding]:
+    """CHECK findings where the maximum flow takes a size beyond the duty's upper limits."""
+    out = []
+    if V > duty.v_max:
+        out.append(Finding(Severity.CHECK, subject + ", at maximum flow", "velocity", V, "m/s",
+                           f"<= {duty.v_max:g} m/s", f"{duty.label}: velocity above range at "
+                           "maximum flow", duty.source))
+    if dp > duty.dp_max:
+        out.append(Finding(Severity.CHECK, subject + ", at maximum flow",
+                           "pressure drop per length", dp, "Pa/m",
+                           f"<= {duty.dp_max * 100 / 1000:g} kPa/100 m",
+                           f"{duty.label}: pressure drop above limit at maximum flow",
+                           duty.source))
+    return out
+
+
+def _label(c) -> str:
+    return str(getattr(c.pipe, "label", "pipe"))
 
 
 def _recommend(cands, duty) -> tuple[int | None, str]:
     for want in ("pass", "check"):
         for i, c in enumerate(cands):
-            if c.verdict == want:
-                first_fail = [f for f in (cands[i - 1].findings if i else ())
-                              if f.severity is Severity.FAIL]
-                why = (f"smallest size with every criterion met for {duty.label}" if want == "pass"
-                       else f"smallest size with no failed criterion for {duty.label}; "
-                            "check the marked items")
-                if first_fail:
-                    why += f"; the next size down fails on {first_fail[0].rule}"
-                return i, why
-    return None, f"no candidate meets the {duty.label} criteria: widen the range or change duty"
+            if c.verdict != want:
+                continue
+            if want == "pass":
+                why = f"{_label(c)}: the smallest size with every criterion met for {duty.label}"
+            else:
+                why = (f"{_label(c)}: no size meets every criterion for {duty.label}; this is "
+                       f"the smallest with none failed (check: {c.governing})")
+            if i:
+                prev = cands[i - 1]
+                why += f"; the next size down ({_label(prev)}) is '{prev.verdict}': {prev.governing}"
+            else:
+                why += "; it is the smallest candidate listed (a smaller size may also do)"
+            return i, why
+    return None, (f"no candidate meets the {duty.label} criteria: add larger sizes, change the "
+                  "duty or its criteria, or split the flow")
 
 
 def batch_friction(Q, D, roughness, rho, mu):
     """Velocity [m/s], Re [-], Darcy f [-] and friction pressure drop per length [Pa/m]
     for arrays of flow and bore (broadcast), by Darcy–Weisbach with
-    :func:`~kit.core.friction.darcy_friction`.
+    :func:`~kit.core.friction.darcy_friction` (Colebrook by Clamond 2009 above Re 4000).
 
+    Parameters
+    ----------
+    Q : array_like
+        Flow, >= 0 [m³/s]
+    D : array_like
+        Inside diameter, > 0 [m]
+    roughness : array_like
+        Absolute roughness [m]
+    rho, mu : float or array_like
+        Density [kg/m³] and dynamic viscosity [Pa·s]
+
+    Returns
+    -------
+    V, Re, f, dp_per_m : ndarray
+        [m/s], [-], [-], [Pa/m]
+
+    Examples
+    --------
     >>> V, Re, f, dp = batch_friction(0.01, 0.1023, 4.5e-5, 998.2, 1.002e-3)
     >>> round(float(dp), 1)
     141.0
@@ -220,3 +477,4 @@ def batch_friction(Q, D, roughness, rho, mu):
     Re = np.maximum(rho * V * D / mu, 1e-9)
     f = darcy_friction(Re, np.asarray(roughness) / D)
     return V, Re, f, f * rho * V * V / (2 * D)
+

@@ -153,7 +153,7 @@ class Chart(widgets.VBox):
             with fig.batch_update():
                 fig.data = ()
                 fig.add_traces([go.Scatter(x=x, y=y, name=s.name, mode=s.mode,
-                                           line=dict(dash=s.dash, color=s.color), **s.extra)
+                                           **_with_line(s))
                                 for s, x, y in data])
             return
         with fig.batch_update():
@@ -172,3 +172,10 @@ class Chart(widgets.VBox):
         self.system = check_system(system)
         self._axes()
         self._render()
+
+
+def _with_line(s) -> dict:
+    """The series' extra trace options, with its dash and colour merged into ``line``."""
+    extra = dict(s.extra)
+    line = {"dash": s.dash, "color": s.color, **dict(extra.pop("line", {}) or {})}
+    return {"line": line, **extra}

@@ -200,6 +200,8 @@ def build_record(scenario, results, *, figures=()) -> Record:
     """
     from kit.core.findings import CAUTIONS
 
+    if hasattr(scenario, "self_contained"):  # carry referenced files (a line list) inline
+        scenario = scenario.self_contained()
     doc = jsonable(scenario.doc)
     header = header_of(doc, getattr(scenario, "source", "<memory>"))
     system = header["display_system"]

@@ -1,0 +1,695 @@
+"""The line-sizing notebook's composite: inputs, candidates table, charts, findings, batch.
+
+:class:`LineSizingApp` lays out the panels of :mod:`kit.panels` for one line:
+
+- **flows**: design, minimum and maximum (:class:`~kit.panels.fields.QuantityField`);
+- **duty class** (pump suction, pump discharge, gravity drain, general transfer) with its
+  criteria — velocity range and pressure drop per length — as editable fields, labelled as
+  common practice with no source; choosing a duty fills its values;
+- **liquid** (:class:`~kit.panels.fluid_picker.FluidPicker`);
+- **pipe**: standard, schedule or class, material, condition (the candidates are every
+  size of the chosen schedule within reach of the velocity range);
+- **route**: developed length, start elevation and name, the elevation profile as a table
+  of named points (the last point is the end of the route and follows the length), the end
+  pressure and the vapour-pressure margin, and the fittings
+  (:class:`~kit.panels.fitting_list.FittingList`);
+- **results**: the candidates table (recommended size marked, with the reason), velocity
+  and pressure drop against bore with the criteria bands shaded, the HGL/EGL profile of a
+  chosen size (default: the recommended one) with the vapour-pressure line and the
+  lowest-pressure station, and the findings of that size;
+- **batch**: a line list pasted as CSV, sized on "Size the list" into a table with a
+  verdict per row (a bad row shows its error; the others are sized).
+
+The app computes nothing itself: it reads the widgets into
+:class:`kit.studies.line_sizing.SizingInputs` and runs :func:`kit.studies.line_sizing.run`;
+results are cached per input, so a change that does not alter the inputs (a size chosen for
+the profile, the display system) only re-renders.
+
+CSS classes: ``hl-line-sizing`` (the app), ``hl-flow-design``/``-min``/``-max``,
+``hl-duty``, ``hl-criteria``, ``hl-standard``, ``hl-schedule``, ``hl-material``,
+``hl-condition``, ``hl-route``, ``hl-route-length``, ``hl-points``, ``hl-candidates``,
+``hl-reason``, ``hl-velocity-chart``, ``hl-dp-chart``, ``hl-profile-size``,
+``hl-profile-chart``, ``hl-size-findings``, ``hl-batch``, ``hl-batch-text``,
+``hl-batch-run``, ``hl-batch-table``, ``hl-app-message``.
+
+Example
+-------
+>>> from kit.notebook import open_scenario
+>>> app = LineSizingApp.from_scenario(open_scenario("harlow_flats_diesel_transfer.toml"))
+>>> app.study.recommended.pipe.nominal
+'5'
+"""
+
+from __future__ import annotations
+
+import html
+import math
+from dataclasses import replace
+
+import ipywidgets as widgets
+import numpy as np
+
+from kit import units
+from kit.core import pipes as core_pipes
+from kit.core.criteria import DUTY_CLASSES, MARGINAL_FRACTION
+from kit.core.line import G
+from kit.core.roughness import CONDITIONS, materials
+from kit.core.sizing import Route
+from kit.panels.base import KIT_ERRORS, check_system, error_html
+from kit.panels.charts import Chart, Series, to_display
+from kit.panels.display import DisplaySwitch
+from kit.panels.fields import QuantityField
+from kit.panels.findings_view import FindingsView
+from kit.panels.fitting_list import FittingList
+from kit.panels.fluid_picker import FluidPicker
+from kit.panels.tables import Column, ResultsTable
+from kit.studies import line_sizing as ls
+
+__all__ = ["LineSizingApp", "CANDIDATE_COLUMNS", "BATCH_COLUMNS", "CRITERIA_NOTE"]
+
+#: The label beside the duty-class criteria.
+CRITERIA_NOTE = "common practice, no source, editable"
+
+CANDIDATE_COLUMNS = (
+    Column("size", "NPS"), Column("bore", "bore", "diameter"),
+    Column("velocity", "V design", "velocity"), Column("velocity_min", "V min", "velocity"),
+    Column("velocity_max", "V max", "velocity"), Column("Re", "Re"), Column("friction", "f"),
+    Column("dp_per_m", "Δp per length", "pressure_per_length"),
+    Column("head_loss", "total loss", "head"),
+    Column("p_start", "p needed at start", "pressure", gauge=True),
+    Column("lowest", "lowest p", "pressure", gauge=True),
+    Column("lowest_station", "at station"), Column("verdict_text", "verdict"),
+    Column("mark", "rec."), Column("why", "why"),
+)
+
+BATCH_COLUMNS = (
+    Column("tag", "tag"), Column("size", "NPS"), Column("bore", "bore", "diameter"),
+    Column("velocity", "velocity", "velocity"),
+    Column("dp_per_m", "Δp per length", "pressure_per_length"),
+    Column("head_loss", "loss", "head"), Column("rise", "rise", "elevation"),
+    Column("verdict_text", "verdict"), Column("reason", "reason or error"),
+)
+
+_BAND = "rgba(60, 160, 90, 0.16)"
+_NEAR = "rgba(230, 160, 30, 0.20)"
+_STYLE = """<style>
+.hl-line-sizing .hl-results td,.hl-line-sizing .hl-results th{padding:2px 4px;
+  border-bottom:1px solid #ddd;text-align:right;font-size:0.85em}
+.hl-line-sizing .hl-results-table{overflow-x:auto}
+.hl-line-sizing .hl-results td:last-child,.hl-line-sizing .hl-results th:last-child{text-align:left;
+  min-width:14em}
+.hl-line-sizing .hl-section{font-weight:bold;font-size:1.08em;margin-top:10px;
+  border-bottom:1px solid #888}
+.hl-line-sizing .hl-note{color:#555;font-style:italic}
+.hl-line-sizing .hl-reason-text{background:#eef4fb;padding:4px 8px;display:block}
+</style>"""
+
+
+def _update(chart: Chart, series, **layout) -> None:
+    """Show ``series`` and set layout properties in one message to the browser (one redraw)
+    once the chart has its traces; the first time, traces first, then the layout."""
+    fig = chart.figure
+    if len(fig.data) == len(series):
+        with fig.batch_update():
+            chart.set_series(series)
+            fig.update_layout(**layout)
+    else:
+        chart.set_series(series)
+        with fig.batch_update():
+            fig.update_layout(**layout)
+
+
+class _Invalid(Exception):
+    """Internal: an input shows its own message; the app keeps the last results."""
+
+
+def _section(text: str) -> widgets.HTML:
+    w = widgets.HTML(f'<div class="hl-section">{html.escape(text)}</div>')
+    return w
+
+
+class _PointRow(widgets.HBox):
+    """One point of the elevation profile: name, chainage, elevation, remove."""
+
+    def __init__(self, name: str, x: float, z: float, system: str):
+        self.name = widgets.Text(value=name, layout=widgets.Layout(width="12em"))
+        self.name.add_class("hl-point-name")
+        self.chainage = QuantityField("length", "chainage", value_si=x, system=system,
+                                      field=f"chainage of '{name}'", width="8em")
+        self.elevation = QuantityField("elevation", "elevation", value_si=z, system=system,
+                                       field=f"elevation of '{name}'", width="8em")
+        for f in (self.chainage, self.elevation):
+            f.label.layout.min_width = "5em"
+        self.remove = widgets.Button(description="remove", layout=widgets.Layout(width="6em"))
+        super().__init__([self.name, self.chainage, self.elevation, self.remove])
+        self.add_class("hl-point")
+
+    def set_system(self, system: str) -> None:
+        self.chainage.set_system(system)
+        self.elevation.set_system(system)
+
+
+class LineSizingApp(widgets.VBox):
+    """Line sizing for one line, with a batch section for a line list.
+
+    Parameters
+    ----------
+    inp : SizingInputs
+        The starting inputs (SI), e.g. :func:`kit.studies.line_sizing.inputs` of a scenario.
+    system : str
+        'SI' or 'US'.
+    batch_text : str, optional
+        CSV line list to prefill the batch box with (sized once on start).
+    sizes : tuple of str, optional
+        Fixed nominal sizes to consider (default: every size within reach of the duty).
+
+    Attributes
+    ----------
+    study : SizingStudy or None
+        The last valid sizing (inputs and result).
+    shown : int or None
+        Index of the candidate shown in the profile chart and the findings.
+    flow_design, flow_min, flow_max, v_min, v_max, dp_max, length, start_elevation,
+    end_pressure, vapour_margin : QuantityField
+    duty, standard, schedule, material, size : ipywidgets.Dropdown
+    condition : ipywidgets.ToggleButtons
+    fluid : FluidPicker
+    fittings : FittingList
+    table, batch_table : ResultsTable
+    v_chart, dp_chart, profile_chart : Chart
+    findings : FindingsView
+    batch_text : ipywidgets.Textarea
+    batch_run : ipywidgets.Button
+    message, reason, batch_message : ipywidgets.HTML
+    """
+
+    def __init__(self, inp: ls.SizingInputs, system: str = "SI", batch_text: str | None = None,
+                 sizes: tuple | None = None):
+        self.system = check_system(system)
+        self.p_baro = inp.p_baro
+        self.fixed_sizes = tuple(sizes) if sizes else None
+        self.erosional_C = inp.erosional_C
+        self._scenario_duty = inp.duty   # the duty as the scenario set it (with its criteria)
+        self.study: ls.SizingStudy | None = None
+        self.shown: int | None = None
+        self._pinned: str | None = None   # nominal size the user chose for the profile
+        self._cache: dict = {}
+        self._hold = 0
+        self.recomputes = 0
+
+        def qf(kind, label, value, css, **kw):
+            f = QuantityField(kind, label, value_si=value, system=system, **kw)
+            f.add_class(css)
+            return f
+
+        # -- flows
+        self.flow_design = qf("flow", "design flow", inp.Q_design, "hl-flow-design")
+        self.flow_min = qf("flow", "minimum flow", inp.Q_min, "hl-flow-min")
+        self.flow_max = qf("flow", "maximum flow", inp.Q_max, "hl-flow-max")
+        # -- duty and criteria
+        self.duty = widgets.Dropdown(options=[(d.label, k) for k, d in DUTY_CLASSES.items()],
+                                     value=inp.duty.key, description="duty class")
+        self.duty.add_class("hl-duty")
+        self.duty.style.description_width = "9em"
+        self.v_min = qf("velocity", "velocity min", inp.duty.v_min, "hl-criteria")
+        self.v_max = qf("velocity", "velocity max", inp.duty.v_max, "hl-criteria")
+        self.dp_max = qf("pressure_per_length", "Δp max", inp.duty.dp_max, "hl-criteria")
+        self.criteria_note = widgets.HTML(
+            f'<span class="hl-note">criteria: {html.escape(CRITERIA_NOTE)}; a value within '
+            f"{MARGINAL_FRACTION:.0%} of an upper limit is marked check</span>")
+        # -- liquid
+        self.fluid = FluidPicker(liquid=inp.liquid, T=inp.state.T, P=inp.p_baro, system=system,
+                                 p_baro=inp.p_baro, title="Liquid")
+        # -- pipe
+        self.standard = widgets.Dropdown(options=[(lbl, k) for k, lbl in core_pipes.standards()],
+                                         value=inp.standard, description="pipe standard")
+        self.schedule = widgets.Dropdown(description="schedule / class")
+        self.material = widgets.Dropdown(options=[(lbl, k) for k, lbl in materials()],
+                                         value=inp.material, description="material")
+        self.condition = widgets.ToggleButtons(options=[(c, c) for c in CONDITIONS],
+                                               value=inp.condition, description="condition")
+        for w, css in ((self.standard, "hl-standard"), (self.schedule, "hl-schedule"),
+                       (self.material, "hl-material"), (self.condition, "hl-condition")):
+            w.add_class(css)
+            w.style.description_width = "9em"
+        for w in (self.standard, self.schedule, self.material):
+            w.layout.width = "30em"
+        self._fill_schedules(inp.schedule)
+        # -- route
+        r = inp.route
+        self.length = qf("length", "developed length", r.length, "hl-route-length")
+        self.start_elevation = qf("elevation", "start elevation", r.start_elevation,
+                                  "hl-start-elevation")
+        self.start_name = widgets.Text(value=r.start_name, description="start station")
+        self.start_name.style.description_width = "9em"
+        self.end_pressure = qf("pressure", "end pressure", inp.p_end, "hl-end-pressure",
+                               gauge=True, p_baro=inp.p_baro)
+        self.vapour_margin = qf("head", "vapour margin", inp.vapour_margin, "hl-vapour-margin")
+        self.points: list[_PointRow] = []
+        self.points_box = widgets.VBox([])
+        self.points_box.add_class("hl-points")
+        self.add_point = widgets.Button(description="add point", icon="plus")
+        pts = r.points or (("end", r.length, r.start_elevation),)
+        self._set_points([self._make_point(n, x, z) for n, x, z in pts])
+        self.fittings = FittingList(r.fittings, system=system,
+                                    title="Fittings along the route (lumped in the first leg)")
+        # -- results
+        self.message = widgets.HTML("")
+        self.message.add_class("hl-app-message")
+        self.table = ResultsTable(CANDIDATE_COLUMNS, system=system, p_baro=inp.p_baro)
+        self.table.add_class("hl-candidates")
+        self.reason = widgets.HTML("")
+        self.reason.add_class("hl-reason")
+        self.v_chart = Chart("diameter", "velocity", title="Velocity against bore",
+                             x_name="bore", system=system, height=340)
+        self.v_chart.add_class("hl-velocity-chart")
+        self.dp_chart = Chart("diameter", "pressure_per_length",
+                              title="Friction pressure drop against bore", x_name="bore",
+                              y_name="pressure drop", system=system, height=340)
+        self.dp_chart.add_class("hl-dp-chart")
+        self.dp_chart.figure.layout.yaxis.type = "log"
+        self.size = widgets.Dropdown(description="size shown")
+        self.size.add_class("hl-profile-size")
+        self.size.style.description_width = "9em"
+        self.size.layout.width = "30em"
+        self.profile_chart = Chart("length", "elevation", title="Hydraulic grade along the route",
+                                   x_name="chainage", y_name="elevation / grade line",
+                                   system=system, height=400)
+        self.profile_chart.add_class("hl-profile-chart")
+        self.size_heading = widgets.HTML("")
+        self.findings = FindingsView(topics=ls.caution_topics(inp), system=system)
+        self.findings.add_class("hl-size-findings")
+        # -- batch
+        self.batch_text = widgets.Textarea(value=batch_text or "", rows=8,
+                                           layout=widgets.Layout(width="100%"),
+                                           placeholder=",".join(ls.LINE_LIST_COLUMNS))
+        self.batch_text.add_class("hl-batch-text")
+        self.batch_run = widgets.Button(description="Size the list", button_style="primary")
+        self.batch_run.add_class("hl-batch-run")
+        self.batch_message = widgets.HTML("")
+        self.batch_table = ResultsTable(BATCH_COLUMNS, system=system)
+        self.batch_table.add_class("hl-batch-table")
+        self.switch = DisplaySwitch([], system=system)
+        super().__init__(self._layout())
+        self.add_class("hl-line-sizing")
+        self.switch.targets.append(self)
+        self._wire()
+        self.recompute()
+        if self.batch_text.value.strip():
+            self.size_list()
+
+    @classmethod
+    def from_scenario(cls, sc, system: str | None = None) -> LineSizingApp:
+        """The app filled from a line-sizing scenario (display system from the scenario)."""
+        inp = ls.inputs(sc)
+        sizes = tuple(str(x) for x in sc.get("sizing.sizes", ()) or ()) or None
+        return cls(inp, system or sc.display_system, ls.batch_text(sc), sizes)
+
+    # ------------------------------------------------------------------ layout
+    def _layout(self):
+        """Build the sections (each displayable on its own) and return the app's children.
+
+        Sections: ``inputs_view`` (flow, duty and criteria, pipe, liquid), ``route_view``
+        (length, profile points, end pressure, fittings), ``candidates_view`` (table and
+        reason), ``charts_view`` (velocity and pressure drop against bore), ``profile_view``
+        (size dropdown, HGL/EGL chart, findings of that size), ``batch_view``.
+        """
+        style = widgets.HTML(_STYLE)
+        flows = widgets.VBox([_section("Flow"), self.flow_design, self.flow_min, self.flow_max])
+        duty = widgets.VBox([_section("Duty and criteria"), self.duty, self.v_min, self.v_max,
+                             self.dp_max, self.criteria_note])
+        pipe = widgets.VBox([_section("Pipe"), self.standard, self.schedule, self.material,
+                             self.condition])
+        left = widgets.VBox([flows, duty, pipe], layout=widgets.Layout(width="50%"))
+        right = widgets.VBox([_section("Liquid"), self.fluid], layout=widgets.Layout(width="50%"))
+        self.inputs_view = widgets.VBox([style, widgets.HBox([left, right])])
+        self.inputs_view.add_class("hl-line-sizing")
+        self.route_view = widgets.VBox([
+            _section("Route"), self.length, self.start_elevation, self.start_name,
+            widgets.HTML("<b>Elevation profile</b> (named points in order of chainage; the "
+                         "last is the end of the route and follows the length)"),
+            self.points_box, self.add_point, self.end_pressure, self.vapour_margin,
+            self.fittings])
+        self.route_view.add_class("hl-route")
+        self.route_view.add_class("hl-line-sizing")
+        self.candidates_view = widgets.VBox([style, _section("Candidate sizes"), self.message,
+                                             self.table, self.reason])
+        self.candidates_view.add_class("hl-line-sizing")
+        self.charts_view = widgets.HBox([self.v_chart, self.dp_chart])
+        self.profile_view = widgets.VBox([_section("Profile of one size"), self.size,
+                                          self.profile_chart, self.size_heading, self.findings])
+        self.profile_view.add_class("hl-line-sizing")
+        self.batch_view = widgets.VBox([
+            style, _section("Line list (batch)"),
+            widgets.HTML("CSV with a header row: " + html.escape(", ".join(ls.LINE_LIST_COLUMNS))
+                         + ". Every quantity with its unit; <i>liquid</i> a catalogue key or "
+                         "<i>scenario</i>; rows use the duty classes' values (the one chosen "
+                         "above with its edited criteria)."),
+            self.batch_text, self.batch_run, self.batch_message, self.batch_table])
+        self.batch_view.add_class("hl-batch")
+        self.batch_view.add_class("hl-line-sizing")
+        return [self.switch, self.inputs_view, self.route_view, self.candidates_view,
+                self.charts_view, self.profile_view, self.batch_view]
+
+    # ------------------------------------------------------------------ wiring
+    def _wire(self) -> None:
+        for f in (self.flow_design, self.flow_min, self.flow_max, self.v_min, self.v_max,
+                  self.dp_max, self.start_elevation, self.end_pressure, self.vapour_margin,
+                  self.fluid, self.fittings):
+            f.observe(self._on_change, names="value")
+        self.length.observe(self._on_length, names="value")
+        for w in (self.schedule, self.material, self.condition, self.start_name):
+            w.observe(self._on_change, names="value")
+        self.standard.observe(self._on_standard, names="value")
+        self.duty.observe(self._on_duty, names="value")
+        self.size.observe(self._on_size, names="value")
+        self.add_point.on_click(self._on_add_point)
+        self.batch_run.on_click(lambda _b: self.size_list())
+
+    def _make_point(self, name, x, z) -> _PointRow:
+        row = _PointRow(name, x, z, self.system)
+        row.name.observe(self._on_change, names="value")
+        row.chainage.observe(self._on_change, names="value")
+        row.elevation.observe(self._on_change, names="value")
+        row.remove.on_click(lambda _b, r=row: self._on_remove_point(r))
+        return row
+
+    def _set_points(self, rows) -> None:
+        self.points = list(rows)
+        for i, row in enumerate(self.points):
+            last = i == len(self.points) - 1
+            row.chainage.input.disabled = last   # the end follows the route length
+            row.remove.disabled = last
+        self.points_box.children = tuple(self.points)
+
+    def _on_add_point(self, _b=None) -> None:
+        end = self.points[-1]
+        prev_x = self.points[-2].chainage.value if len(self.points) > 1 else 0.0
+        L = self.length.value or end.chainage.value or 0.0
+        z = end.elevation.value if end.elevation.value is not None else 0.0
+        row = self._make_point(f"point {len(self.points)}", 0.5 * ((prev_x or 0.0) + L), z)
+        self._set_points([*self.points[:-1], row, end])
+        self.recompute()
+
+    def _on_remove_point(self, row) -> None:
+        self._set_points([r for r in self.points if r is not row])
+        self.recompute()
+
+    def _on_change(self, change=None) -> None:
+        if not self._hold:
+            self.recompute()
+
+    def _on_length(self, change) -> None:
+        if change["new"] is not None:
+            self._hold += 1
+            try:
+                self.points[-1].chainage.value = change["new"]
+            finally:
+                self._hold -= 1
+        self._on_change()
+
+    def _on_standard(self, change) -> None:
+        self._hold += 1
+        try:
+            self._fill_schedules(self.schedule.value)
+        finally:
+            self._hold -= 1
+        self._on_change()
+
+    def _on_duty(self, change) -> None:
+        d = DUTY_CLASSES[change["new"]]
+        self._hold += 1
+        try:
+            self.v_min.value, self.v_max.value, self.dp_max.value = d.v_min, d.v_max, d.dp_max
+        finally:
+            self._hold -= 1
+        self._on_change()
+
+    def _on_size(self, change) -> None:
+        if self._hold or change["new"] is None:
+            return
+        self._pinned = change["new"]
+        self._show_size()
+
+    def _fill_schedules(self, keep: str | None) -> None:
+        std = core_pipes.STANDARDS[self.standard.value]
+        seen = set()
+        for nom in core_pipes.nominal_sizes(std.key):
+            seen.update(core_pipes.schedules(std.key, nom))
+        options = [(f"{std.schedule_word} {c}".strip(), c) for c, _ in std.classes if c in seen]
+        keys = [k for _, k in options]
+        self.schedule.options = options
+        self.schedule.value = keep if keep in keys else ("40" if "40" in keys else keys[0])
+
+    # ------------------------------------------------------------------ inputs
+    def _q(self, f: QuantityField) -> float:
+        if not f.valid or f.value is None:
+            raise _Invalid(f.error or f"'{f.field}' is required")
+        return f.value
+
+    def read_inputs(self) -> ls.SizingInputs:
+        """The panels' values as :class:`~kit.studies.line_sizing.SizingInputs` (SI).
+
+        Raises ``_Invalid`` (an input shows its own message) or a kit error.
+        """
+        sel = self.fluid.value
+        if sel is None:
+            raise _Invalid(self.fluid.error or "the liquid state is not valid")
+        fits = self.fittings.value
+        if fits is None:
+            raise _Invalid(self.fittings.error or "a fitting row is not valid")
+        Qd, Qmin, Qmax = self._q(self.flow_design), self._q(self.flow_min), self._q(self.flow_max)
+        base = DUTY_CLASSES[self.duty.value]
+        v_min, v_max, dp_max = self._q(self.v_min), self._q(self.v_max), self._q(self.dp_max)
+        duty = base
+        given = self._scenario_duty
+        if given.key == base.key and (v_min, v_max, dp_max) == (given.v_min, given.v_max,
+                                                                given.dp_max):
+            duty = given
+        elif (v_min, v_max, dp_max) != (base.v_min, base.v_max, base.dp_max):
+            duty = replace(base, v_min=v_min, v_max=v_max, dp_max=dp_max,
+                           source="edited in the notebook; defaults: " + DUTY_CLASSES[
+                               base.key].source)
+        L = self._q(self.length)
+        pts = []
+        for i, row in enumerate(self.points):
+            x = L if i == len(self.points) - 1 else self._q(row.chainage)
+            pts.append((row.name.value.strip() or f"point {i + 1}", x, self._q(row.elevation)))
+        route = Route(L, tuple(pts), fits, self._q(self.start_elevation),
+                      self.start_name.value.strip() or "start")
+        pipes = ls.candidate_pipes(self.standard.value, self.schedule.value, self.material.value,
+                                   self.condition.value, self.fixed_sizes)
+        if not pipes:
+            raise _Invalid(f"no size of {self.standard.value} has schedule {self.schedule.value}")
+        if self.fixed_sizes is None:
+            pipes = ls.sizes_in_reach(pipes, Qd, duty)
+        return ls.SizingInputs(route, sel.liquid, sel.state, duty, Qd, Qmin, Qmax,
+                               self.standard.value, self.schedule.value, self.material.value,
+                               self.condition.value, pipes, self._q(self.end_pressure),
+                               self.p_baro, self._q(self.vapour_margin), self.erosional_C)
+
+    @staticmethod
+    def _key(inp: ls.SizingInputs) -> tuple:
+        s = inp.state
+        return (inp.route, s.name, s.T, s.P, s.rho, s.mu, s.pv, inp.duty, inp.Q_design,
+                inp.Q_min, inp.Q_max, inp.sizes, inp.p_end, inp.p_baro, inp.vapour_margin,
+                inp.erosional_C)
+
+    # ------------------------------------------------------------------ compute and render
+    def recompute(self) -> None:
+        """Read the panels, size the line (cached per input) and re-render the results."""
+        try:
+            inp = self.read_inputs()
+            key = self._key(inp)
+            res = self._cache.get(key)
+            if res is None:
+                res = ls.run(inp)
+                self.recomputes += 1
+                if len(self._cache) > 64:
+                    self._cache.clear()
+                self._cache[key] = res
+        except _Invalid as exc:
+            self._stale(str(exc))
+            return
+        except KIT_ERRORS as exc:
+            self._stale(str(exc))
+            return
+        self.message.value = ""
+        self.study = ls.SizingStudy(inp, res)
+        self.findings.topics = ls.caution_topics(inp)
+        self._render()
+
+    def _stale(self, message: str) -> None:
+        self.message.value = (error_html(message) + '<div class="hl-note">Results below are '
+                              "for the last valid input.</div>")
+
+    def _render(self) -> None:
+        st = self.study
+        rows = ls.candidate_rows(st)
+        label = st.inputs.duty.label + ": "
+        for r, c in zip(rows, st.result.candidates, strict=True):
+            r["verdict_text"] = r["verdict"].upper()
+            r["why"] = c.error or "; ".join(dict.fromkeys(
+                f.rule.removeprefix(label).split(";")[0] for f in c.findings
+                if f.severity.value == c.verdict)) or "all criteria met"
+        self.table.value = tuple(rows)
+        self.reason.value = (f'<span class="hl-reason-text"><b>Recommended:</b> '
+                             f"{html.escape(st.result.reason)}</span>")
+        self._render_criteria_charts()
+        cands = st.result.candidates
+        options = [(f"{c.pipe.label} — {c.verdict.upper()}"
+                    + ("  (recommended)" if i == st.result.recommended else ""), c.pipe.nominal)
+                   for i, c in enumerate(cands)]
+        want = self._pinned if self._pinned in [c.pipe.nominal for c in cands] else None
+        if want is None and st.result.recommended is not None:
+            want = cands[st.result.recommended].pipe.nominal
+        self._hold += 1
+        try:
+            self.size.options = options
+            self.size.value = want if want is not None else cands[0].pipe.nominal
+        finally:
+            self._hold -= 1
+        self._show_size()
+
+    def _render_criteria_charts(self) -> None:
+        st, sysm = self.study, self.system
+        cands = st.result.candidates
+        D = np.array([c.pipe.Di for c in cands])
+        duty = st.inputs.duty
+        lo, hi = float(D.min()) * 0.92, float(D.max()) * 1.05
+        box_x = np.array([lo, hi, hi, lo, lo])
+        V = np.array([c.velocity for c in cands])
+        top = 1.0 - MARGINAL_FRACTION
+        rec = st.result.recommended
+        v_series = [
+            Series("velocity range (criteria)", box_x,
+                   np.array([duty.v_min, duty.v_min, duty.v_max * top, duty.v_max * top,
+                             duty.v_min]), extra=dict(fill="toself", fillcolor=_BAND,
+                                                      line_width=0, hoverinfo="skip")),
+            Series(f"within {MARGINAL_FRACTION:.0%} of the limit", box_x,
+                   np.array([duty.v_max * top, duty.v_max * top, duty.v_max, duty.v_max,
+                             duty.v_max * top]), extra=dict(fill="toself", fillcolor=_NEAR,
+                                                            line_width=0, hoverinfo="skip")),
+            Series("at minimum flow", D, np.array([c.velocity_min for c in cands]),
+                   mode="lines+markers", dash="dot", color="#7f8fa6"),
+            Series("at maximum flow", D, np.array([c.velocity_max for c in cands]),
+                   mode="lines+markers", dash="dot", color="#2f3640"),
+            Series("at design flow", D, V, mode="lines+markers", color="#1f5fa8"),
+            Series("recommended", D[[rec]] if rec is not None else D[:0],
+                   V[[rec]] if rec is not None else V[:0], mode="markers", color="#c0392b",
+                   extra=dict(marker=dict(size=14, symbol="star"))),
+        ]
+        dp = np.array([c.dp_per_m for c in cands])
+        floor = duty.dp_max / 1000.0
+        dp_series = [
+            Series("pressure-drop limit (criteria)", box_x,
+                   np.array([floor, floor, duty.dp_max * top, duty.dp_max * top, floor]),
+                   extra=dict(fill="toself", fillcolor=_BAND, line_width=0,
+                              hoverinfo="skip")),
+            Series(f"within {MARGINAL_FRACTION:.0%} of the limit", box_x,
+                   np.array([duty.dp_max * top, duty.dp_max * top, duty.dp_max, duty.dp_max,
+                             duty.dp_max * top]),
+                   extra=dict(fill="toself", fillcolor=_NEAR, line_width=0,
+                              hoverinfo="skip")),
+            Series("at design flow", D, dp, mode="lines+markers", color="#1f5fa8"),
+            Series("recommended", D[[rec]] if rec is not None else D[:0],
+                   dp[[rec]] if rec is not None else dp[:0], mode="markers", color="#c0392b",
+                   extra=dict(marker=dict(size=14, symbol="star"))),
+        ]
+        x = list(to_display([lo, hi], "diameter", sysm))
+        vy = list(to_display([0.0, 2.0 * duty.v_max], "velocity", sysm))
+        dpy = to_display([floor, duty.dp_max * 30.0], "pressure_per_length", sysm)
+        _update(self.v_chart, v_series, xaxis_range=x, yaxis_range=vy)
+        _update(self.dp_chart, dp_series, xaxis_range=x,
+                yaxis_range=[math.log10(dpy[0]), math.log10(dpy[1])])
+
+    def _show_size(self) -> None:
+        st = self.study
+        i = st.index_of(self.size.value)
+        if i is None:
+            return
+        self.shown = i
+        c = st.result.candidates[i]
+        profs = st.result.range_profiles[i]
+        if profs is None:
+            self.profile_chart.set_series([])
+            self.size_heading.value = error_html(c.error)
+            self.findings.value = ()
+            return
+        pmin, pdes, _pmax = profs
+        x = pdes.column("x")
+        z = pdes.column("z")
+        pv = st.inputs.state.pv
+        series = [
+            Series("pipe elevation", x, z, mode="lines+markers", color="#7f7f7f"),
+            Series("EGL, design flow", x, pdes.column("egl"), dash="dash", color="#8e44ad"),
+            Series("HGL, design flow", x, pdes.column("hgl"), mode="lines+markers",
+                   color="#1f5fa8"),
+            Series("HGL, minimum flow", x, pmin.column("hgl"), dash="dot", color="#5dade2"),
+        ]
+        if pv is not None:
+            series.append(Series("vapour-pressure line", x,
+                                 z + (pv - pdes.p_baro) / (pdes.rho * G), dash="dot",
+                                 color="#c0392b"))
+        low_prof = min(profs, key=lambda p: p.lowest.p)
+        low = low_prof.lowest
+        series.append(Series(f"lowest pressure: {low.name}", np.array([low.x]),
+                             np.array([low.hgl]), mode="markers+text", color="#c0392b",
+                             extra=dict(marker=dict(size=13, symbol="x"),
+                                        text=[f"lowest p: {low.name}"],
+                                        textposition="top center")))
+        _update(self.profile_chart, series,
+                title_text=f"Hydraulic grade along the route: {c.pipe.label}")
+        where = "design" if low_prof is pdes else ("minimum" if low_prof is pmin else "maximum")
+        p_text = units.fmt_pressure(low.p, self.system, gauge=True, p_baro=self.p_baro)
+        self.size_heading.value = (
+            f"<b>Findings for {html.escape(c.pipe.label)}</b> — verdict "
+            f"<b>{html.escape(c.verdict.upper())}</b>; lowest pressure {html.escape(p_text)} at "
+            f"station '{html.escape(low.name)}' ({where} flow). HGL = elevation + gauge "
+            "pressure head; where the HGL meets the vapour-pressure line the liquid boils.")
+        self.findings.value = c.findings
+        self.fittings.set_conditions(c.Re, c.pipe.Di, c.pipe.roughness)
+
+    # ------------------------------------------------------------------ batch
+    def size_list(self) -> None:
+        """Size the line list in the text box and show one row per line."""
+        self.batch_message.value = ""
+        try:
+            rows = ls.read_line_list(self.batch_text.value)
+        except KIT_ERRORS as exc:
+            self.batch_message.value = error_html(str(exc))
+            return
+        sel = self.fluid.value
+        duties = dict(DUTY_CLASSES)
+        if self.study is not None:
+            duties[self.study.inputs.duty.key] = self.study.inputs.duty
+        out = ls.size_batch(rows, sel.liquid if sel is not None else None, self.p_baro, duties)
+        table = ls.batch_rows(out)
+        for r in table:
+            r["verdict_text"] = r["verdict"].upper()
+        self.batch_table.value = tuple(table)
+        n_err = sum(1 for x in out if x.verdict == "error")
+        self.batch_message.value = html.escape(
+            f"{len(out)} lines sized: "
+            + ", ".join(f"{sum(1 for x in out if x.verdict == v)} {v}"
+                        for v in ("pass", "check", "fail", "error"))
+            + (" — rows in error show the reason; the others are sized." if n_err else ""))
+
+    # ------------------------------------------------------------------ display system
+    def set_system(self, system: str) -> None:
+        """Show every quantity in ``system`` ('SI' or 'US'); typed text is kept."""
+        self.system = check_system(system)
+        for p in (self.flow_design, self.flow_min, self.flow_max, self.v_min, self.v_max,
+                  self.dp_max, self.length, self.start_elevation, self.end_pressure,
+                  self.vapour_margin, self.fluid, self.fittings, self.table, self.batch_table,
+                  self.findings, self.v_chart, self.dp_chart, self.profile_chart, *self.points):
+            p.set_system(system)
+        if self.study is not None:
+            self._render_criteria_charts()
+            self._show_size()
+
+    def figures(self) -> list:
+        """Static copies (plotly ``go.Figure``) of the three charts, for the record."""
+        import plotly.graph_objects as go
+
+        return [go.Figure(c.figure) for c in (self.v_chart, self.dp_chart, self.profile_chart)]

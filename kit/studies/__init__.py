@@ -1,0 +1,1 @@
+"""Studies: one module per scenario kind, each with ``compute(scenario) -> Results``."""

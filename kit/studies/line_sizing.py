@@ -1,0 +1,476 @@
+"""Line sizing study: candidate sizes for one line, and a line list sized in one go.
+
+Scenario keys of this kind (besides the common ones of :mod:`kit.scenario`)::
+
+    [sizing]   duty = "pump_discharge"  (key of kit.core.criteria.DUTY_CLASSES)
+               flow_design, flow_min, flow_max
+               standard, schedule, material, condition
+               sizes = ["2", "3", ...]   (optional; default: every size of the schedule
+                                          whose design velocity is within reach of the range)
+               end_pressure = "0 psig", vapour_margin = "2 m", erosional_C = 100
+    [criteria] v_min, v_max, dp_max      (optional overrides of the duty class, with units;
+                                          dp_max as a pressure per 100 m or per 100 ft)
+    [route]    length, start_elevation, start_name,
+               points = [{ name, chainage, elevation }, ...], fittings = [...]
+    [batch]    file = "line_list.csv"    (optional: a line list beside the scenario)
+               text = "tag,flow,..."  (or the list itself; the record carries it so)
+
+The line list is CSV with a header row; every cell a number with its unit::
+
+    tag,flow,liquid,temperature,length,rise,duty,standard,schedule,material,condition,k_total
+
+``liquid`` is a catalogue key (``water``, ``propylene_glycol_aq:0.3`` with a mass fraction)
+or ``scenario`` for the scenario's own liquid. Errors are reported per row: a bad row gets
+the verdict ``error`` and the kit's message, and the other rows go on.
+
+Example
+-------
+>>> rows = read_line_list("tag,flow,length,duty\\nL-1,150 gpm,100 m,pump_discharge\\n")
+>>> from kit.core.liquids import make_liquid
+>>> b = size_batch(rows, make_liquid("water"))
+>>> b[0].size, b[0].verdict
+('3-1/2', 'pass')
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+from dataclasses import dataclass, replace
+from functools import lru_cache
+from pathlib import Path
+
+import numpy as np
+
+from kit import scenario as scn
+from kit import units
+from kit.core.criteria import DUTY_CLASSES, MARGINAL_FRACTION, DutyClass
+from kit.core.findings import cautions_for
+from kit.core.friction import FRICTION_METHOD
+from kit.core.line import G
+from kit.core.sizing import Route, SizingResult, batch_friction, size_line
+from kit.errors import DimensionError, HeadlineError, InputError, ScenarioError, check_range
+from kit.results import Results
+
+__all__ = ["SizingInputs", "SizingStudy", "inputs", "study", "run", "compute", "size_batch",
+           "read_line_list", "candidate_pipes", "sizes_in_reach", "BatchRow", "LINE_LIST_COLUMNS",
+           "candidate_rows", "batch_rows", "batch_text", "caution_topics"]
+
+#: Columns of a line list, in order (``tag`` is required; the others have defaults).
+LINE_LIST_COLUMNS = ("tag", "flow", "liquid", "temperature", "length", "rise", "duty",
+                     "standard", "schedule", "material", "condition", "k_total")
+
+
+@dataclass(frozen=True)
+class SizingInputs:
+    """Everything one sizing needs, in SI (built from a scenario or from the panels)."""
+
+    route: Route
+    liquid: object
+    state: object
+    duty: DutyClass
+    Q_design: float
+    Q_min: float
+    Q_max: float
+    standard: str
+    schedule: str
+    material: str
+    condition: str
+    sizes: tuple
+    p_end: float
+    p_baro: float
+    vapour_margin: float
+    erosional_C: float
+
+
+@dataclass(frozen=True)
+class SizingStudy:
+    """A sizing: its inputs and its result (candidates, recommendation, profiles)."""
+
+    inputs: SizingInputs
+    result: SizingResult
+
+    @property
+    def recommended(self):
+        r = self.result.recommended
+        return None if r is None else self.result.candidates[r]
+
+    def index_of(self, nominal: str) -> int | None:
+        """Index of the candidate of nominal size ``nominal`` (None if absent)."""
+        for i, c in enumerate(self.result.candidates):
+            if c.pipe.nominal == nominal:
+                return i
+        return None
+
+
+def _duty(doc) -> DutyClass:
+    key = scn.get(doc, "sizing.duty", "general_transfer")
+    if key not in DUTY_CLASSES:
+        raise ScenarioError("sizing.duty", f"must be one of {', '.join(DUTY_CLASSES)}, not {key!r}")
+    duty = DUTY_CLASSES[key]
+    crit = doc.get("criteria", {})
+    changes = {}
+    if "v_min" in crit:
+        changes["v_min"] = scn.quantity(crit, "v_min", "velocity", prefix="criteria.")
+    if "v_max" in crit:
+        changes["v_max"] = scn.quantity(crit, "v_max", "velocity", prefix="criteria.")
+    if "dp_max" in crit:
+        changes["dp_max"] = scn.quantity(crit, "dp_max", "pressure_per_length",
+                                         prefix="criteria.")
+    if changes:
+        try:
+            duty = replace(duty, source="user-set in [criteria]; others: " + duty.source,
+                           **changes)
+        except HeadlineError as exc:
+            raise ScenarioError("criteria", str(exc)) from None
+    return duty
+
+
+@lru_cache(maxsize=256)
+def candidate_pipes(standard, schedule, material, condition, sizes=None) -> tuple:
+    """Catalogue pipes of one schedule, smallest first (sizes without that schedule skipped).
+
+    Cached: a pure function of its arguments (``sizes`` a tuple of nominal sizes or None).
+    """
+    from kit.core import pipes
+
+    out = []
+    for nom in sizes or pipes.nominal_sizes(standard):
+        if schedule in pipes.schedules(standard, nom):
+            out.append(pipes.catalogue_pipe(standard, nom, schedule, material, condition))
+    return tuple(out)
+
+
+def sizes_in_reach(pipes, Q: float, duty: DutyClass) -> tuple:
+    """The pipes whose design velocity is within reach of the duty's range
+    (a quarter of ``v_min`` to 2.5 × ``v_max``); all of them if none is."""
+    keep = tuple(p for p in pipes if 0.25 * duty.v_min <= Q / p.area <= 2.5 * duty.v_max)
+    return keep or tuple(pipes)
+
+
+def _route(doc) -> Route:
+    sec = doc.get("route")
+    if not isinstance(sec, dict):
+        raise ScenarioError("route", "section is missing")
+    length = scn.quantity(sec, "length", "length", prefix="route.")
+    z0 = scn.quantity(sec, "start_elevation", "elevation", default=0.0, prefix="route.")
+    pts = []
+    for i, p in enumerate(sec.get("points", [])):
+        key = f"route.points[{i}]"
+        pts.append((p.get("name", f"point {i + 1}"),
+                    scn.quantity(p, "chainage", "length", prefix=f"{key}."),
+                    scn.quantity(p, "elevation", "elevation", prefix=f"{key}.")))
+    fits = tuple(scn.build_fitting(f, f"route.fittings[{i}]")
+                 for i, f in enumerate(sec.get("fittings", [])))
+    try:
+        return Route(length, tuple(pts), fits, z0, sec.get("start_name", "start"))
+    except HeadlineError as exc:
+        raise ScenarioError("route", str(exc)) from None
+
+
+def inputs(sc) -> SizingInputs:
+    """Read a line-sizing scenario into core inputs (SI)."""
+    doc = sc.doc
+    p_baro = scn.build_site(doc)
+    liquid = scn.build_liquid(doc)
+    T, _ = scn.build_temperatures(doc)
+    try:
+        state = liquid.state(T, p_baro)
+    except HeadlineError as exc:
+        raise ScenarioError("liquid", str(exc)) from None
+    s = doc.get("sizing")
+    if not isinstance(s, dict):
+        raise ScenarioError("sizing", "section is missing")
+    Qd = scn.quantity(s, "flow_design", "flow", prefix="sizing.")
+    Qmin = scn.quantity(s, "flow_min", "flow", default=Qd, prefix="sizing.")
+    Qmax = scn.quantity(s, "flow_max", "flow", default=Qd, prefix="sizing.")
+    standard = s.get("standard", "asme_b36_10m")
+    schedule = str(s.get("schedule", "40"))
+    sizes = tuple(str(x) for x in s.get("sizes", ())) or None
+    material = s.get("material", "carbon_steel")
+    condition = s.get("condition", "new")
+    try:
+        pipes = candidate_pipes(standard, schedule, material, condition, sizes)
+    except HeadlineError as exc:
+        raise ScenarioError("sizing", str(exc)) from None
+    if not pipes:
+        raise ScenarioError("sizing.schedule", f"no size of {standard} has schedule {schedule!r}")
+    duty = _duty(doc)
+    if sizes is None:
+        pipes = sizes_in_reach(pipes, Qd, duty)
+    try:
+        C = check_range("sizing.erosional_C", s.get("erosional_C", 100.0), "-", low=0.0,
+                        high=300.0)
+    except HeadlineError as exc:
+        raise ScenarioError("sizing.erosional_C", str(exc)) from None
+    return SizingInputs(
+        _route(doc), liquid, state, duty, Qd, Qmin, Qmax, standard, schedule, material,
+        condition, tuple(pipes),
+        scn.quantity(s, "end_pressure", "pressure", default=p_baro, p_baro=p_baro,
+                     prefix="sizing."),
+        p_baro, scn.quantity(s, "vapour_margin", "head", default=2.0, prefix="sizing."), C)
+
+
+def run(inp: SizingInputs) -> SizingResult:
+    """Size the line of ``inp`` (see :func:`kit.core.sizing.size_line`)."""
+    return size_line(inp.route, inp.state, inp.Q_design, inp.sizes, inp.duty, inp.Q_min,
+                     inp.Q_max, inp.p_end, inp.p_baro, inp.vapour_margin, inp.erosional_C)
+
+
+def study(sc, inp: SizingInputs | None = None) -> SizingStudy:
+    """The sizing of a scenario (or of ready inputs): inputs and result."""
+    inp = inp or inputs(sc)
+    try:
+        res = run(inp)
+    except HeadlineError as exc:
+        raise ScenarioError("sizing", str(exc)) from None
+    return SizingStudy(inp, res)
+
+
+def candidate_rows(st: SizingStudy) -> list[dict]:
+    """One row dict (SI values) per candidate, for the candidates table and the record."""
+    rows = []
+    rec = st.result.recommended
+    for i, c in enumerate(st.result.candidates):
+        rows.append({
+            "size": c.pipe.nominal, "label": c.pipe.label, "bore": c.pipe.Di,
+            "velocity": c.velocity, "velocity_min": c.velocity_min,
+            "velocity_max": c.velocity_max, "Re": c.Re, "friction": c.friction,
+            "dp_per_m": c.dp_per_m, "head_loss": c.head_loss, "p_start": c.p_start,
+            "lowest": c.p_lowest, "lowest_station": c.lowest_station,
+            "verdict": c.verdict, "governing": c.governing,
+            "mark": "◀ recommended" if i == rec else ""})
+    return rows
+
+
+# ------------------------------------------------------------------ batch
+
+@dataclass(frozen=True)
+class BatchRow:
+    """One sized row of a line list (SI); ``verdict`` 'pass'/'check'/'fail' or 'error'."""
+
+    tag: str
+    size: str
+    bore: float
+    velocity: float
+    dp_per_m: float
+    head_loss: float
+    rise: float
+    verdict: str
+    reason: str
+
+
+def read_line_list(text: str) -> list[dict]:
+    """Rows of a CSV line list as dicts of strings (header row with 'tag' required).
+
+    >>> read_line_list("tag,flow\\nA, 10 gpm\\n")
+    [{'tag': 'A', 'flow': '10 gpm'}]
+    """
+    reader = csv.DictReader(io.StringIO(text))
+    if not reader.fieldnames or "tag" not in [f.strip() for f in reader.fieldnames]:
+        raise ScenarioError("batch", "line list must be CSV with a header row including 'tag'")
+    return [{k.strip(): (v or "").strip() if isinstance(v, str) else "" for k, v in row.items()
+             if k} for row in reader]
+
+
+def _bores(standard, schedule, material, condition):
+    pipes = candidate_pipes(standard, schedule, material, condition)
+    if not pipes:
+        raise InputError("schedule", schedule, f"is not a schedule of any size of {standard}")
+    return _bore_arrays(pipes)
+
+
+@lru_cache(maxsize=256)
+def _bore_arrays(pipes: tuple):
+    return ([p.nominal for p in pipes], np.array([p.Di for p in pipes]),
+            np.array([p.roughness for p in pipes]))
+
+
+@lru_cache(maxsize=512)
+def _affine(unit: str, kind: str) -> tuple[float, float]:
+    """(a, b) with parse(f"{x} {unit}") = a + b·x: every unit conversion here is affine."""
+    a = units.parse(f"0 {unit}", kind, "unit")
+    return a, units.parse(f"1 {unit}", kind, "unit") - a
+
+
+def _parse(text, kind: str, field: str) -> float:
+    """:func:`kit.units.parse`, with the unit's conversion cached (same value, same errors)."""
+    value, unit = units.split_text(text, field, units.KINDS[kind][1])
+    try:
+        a, b = _affine(unit, kind)
+    except (HeadlineError, DimensionError):
+        return units.parse(text, kind, field)  # raises with the user's own text
+    return a + b * value
+
+
+def _row_liquid(text, default_liquid):
+    from kit.core.liquids import make_liquid
+
+    if text in ("", "scenario"):
+        if default_liquid is None:
+            raise ScenarioError("liquid", "row names the scenario liquid, but there is none")
+        return default_liquid
+    key, _, conc = text.partition(":")
+    return make_liquid(key, units.parse(conc, "fraction", "concentration") if conc else None)
+
+
+def _pick(V, dp, duty: DutyClass):
+    """Index and verdict of the smallest bore that passes (else checks) the duty's velocity
+    and pressure-drop criteria — the rule of :func:`kit.core.sizing.size_line`."""
+    top = 1.0 - MARGINAL_FRACTION
+    passes = (V <= duty.v_max * top) & (dp <= duty.dp_max * top) & (V >= duty.v_min)
+    if passes.any():
+        return int(np.argmax(passes)), "pass"
+    ok = (V <= duty.v_max) & (dp <= duty.dp_max)
+    if ok.any():
+        return int(np.argmax(ok)), "check"
+    return None, "fail"
+
+
+def size_batch(rows: list[dict], default_liquid=None, p_baro: float = 101325.0,
+               duties: dict | None = None) -> list[BatchRow]:
+    """Size every row of a line list.
+
+    For each row: the smallest size of its schedule whose velocity and friction pressure drop
+    at the row's flow meet its duty class (Darcy–Weisbach with Colebrook over all bores at
+    once, :func:`kit.core.sizing.batch_friction`); verdict 'pass' when every criterion is met
+    with the 10 % margin, 'check' when only the limits themselves are met, 'fail' when no size
+    meets them. The head loss is ``(f L/D + K) V²/2g`` with the row's total K. A bad row gets
+    verdict ``error`` and the kit's message; the other rows go on.
+
+    Parameters
+    ----------
+    rows : list of dict
+        From :func:`read_line_list` (columns :data:`LINE_LIST_COLUMNS`) [-]
+    default_liquid : Liquid or UserLiquid, optional
+        The liquid of rows whose ``liquid`` is empty or ``scenario`` [-]
+    p_baro : float
+        Barometric pressure: the pressure of the liquid states [Pa]
+    duties : dict, optional
+        Duty classes by key (default :data:`kit.core.criteria.DUTY_CLASSES`) [-]
+
+    Returns
+    -------
+    list of BatchRow
+    """
+    duties = DUTY_CLASSES if duties is None else duties
+    out = []
+    nan = float("nan")
+    for i, row in enumerate(rows):
+        tag = row.get("tag") or f"row {i + 1}"
+        try:
+            Q = check_range(f"{tag}: flow", _parse(row.get("flow"), "flow", f"{tag}: flow"),
+                            "m³/s", low=0.0, high=100.0)
+            L = check_range(f"{tag}: length", _parse(row.get("length"), "length",
+                                                     f"{tag}: length"), "m", low=0.0, high=1e6)
+            rise = check_range(f"{tag}: rise", _parse(row.get("rise") or "0 m", "length",
+                                                      f"{tag}: rise"), "m", low=-L, high=L,
+                               low_inclusive=True)
+            T = _parse(row.get("temperature") or "20 degC", "temperature", f"{tag}: temperature")
+            duty_key = row.get("duty") or "general_transfer"
+            if duty_key not in duties:
+                raise ScenarioError(f"{tag}: duty", f"must be one of {', '.join(duties)}, "
+                                    f"not {duty_key!r}")
+            duty = duties[duty_key]
+            try:
+                K = float(row.get("k_total") or 0.0)
+            except ValueError:
+                raise InputError(f"{tag}: k_total", row.get("k_total"),
+                                 "must be a plain number (the row's total K)") from None
+            K = check_range(f"{tag}: k_total", K, "-", low=0.0, high=1e4, low_inclusive=True)
+            state = _row_liquid(row.get("liquid", ""), default_liquid).state(T, p_baro)
+            noms, D, eps = _bores(row.get("standard") or "asme_b36_10m",
+                                  row.get("schedule") or "40",
+                                  row.get("material") or "carbon_steel",
+                                  row.get("condition") or "new")
+            V, Re, f, dp = batch_friction(Q, D, eps, state.rho, state.mu)
+            j, verdict = _pick(V, dp, duty)
+            if j is None:
+                out.append(BatchRow(tag, "", nan, nan, nan, nan, rise, "fail",
+                                    f"no size of the schedule meets the {duty.label} velocity "
+                                    "and pressure-drop limits"))
+                continue
+            hl = (f[j] * L / D[j] + K) * V[j] ** 2 / (2 * G)
+            why = (f"smallest size meeting every {duty.label} criterion" if verdict == "pass"
+                   else f"smallest size within the {duty.label} limits, but near one or below "
+                        "the velocity range")
+            out.append(BatchRow(tag, noms[j], float(D[j]), float(V[j]), float(dp[j]),
+                                float(hl), rise, verdict, why))
+        except (HeadlineError, DimensionError) as exc:
+            text = str(exc)
+            out.append(BatchRow(tag, "", nan, nan, nan, nan, nan, "error",
+                                text if tag in text else f"{tag}: {text}"))
+    return out
+
+
+def batch_rows(batch) -> list[dict]:
+    """Row dicts (SI) of a sized line list, for tables and the record."""
+    return [vars(x).copy() for x in batch]
+
+
+def batch_text(sc) -> str | None:
+    """The text of the scenario's line list file (``[batch] file``), or None."""
+    inline = scn.get(sc.doc, "batch.text")
+    if inline is not None:  # a line list carried in the scenario (records are self-contained)
+        return str(inline)
+    file = scn.get(sc.doc, "batch.file")
+    if not file:
+        return None
+    path = Path(sc.source).parent / file if sc.source not in ("<memory>", "<string>") else Path(file)
+    try:
+        return path.read_text(encoding="utf-8")
+    except OSError as exc:
+        raise ScenarioError("batch.file", f"cannot be read: {exc.strerror}") from None
+
+
+def compute(sc) -> Results:
+    """Line-sizing results: every candidate, the recommended size, the batch verdicts."""
+    st = study(sc)
+    inp, res = st.inputs, st.result
+    r = Results("line_sizing")
+    r.add("design.flow", "design flow", inp.Q_design, "flow")
+    r.add("liquid.density", "density", inp.state.rho, "density")
+    r.add("liquid.viscosity", "viscosity", inp.state.mu, "viscosity")
+    for c in res.candidates:
+        if c.error:
+            continue
+        nom = c.pipe.nominal
+        r.add(f"size.{nom}.velocity", f"NPS {nom}: velocity", c.velocity, "velocity")
+        r.add(f"size.{nom}.dp", f"NPS {nom}: pressure drop", c.dp_per_m, "pressure_per_length")
+        r.add(f"size.{nom}.head_loss", f"NPS {nom}: head loss", c.head_loss, "head")
+    r.tables["candidates"] = candidate_rows(st)
+    if res.recommended is not None:
+        c = res.candidates[res.recommended]
+        r.tables["recommended"] = [{"size": c.pipe.nominal, "label": c.pipe.label,
+                                    "reason": res.reason}]
+        r.add("recommended.bore", f"recommended: {c.pipe.label}, bore", c.pipe.Di, "diameter")
+        r.add("recommended.start_pressure", "recommended: pressure needed at start",
+              c.p_start - inp.p_baro, "pressure_difference")
+        r.add("recommended.lowest_pressure", f"recommended: lowest pressure ({c.lowest_station})",
+              c.p_lowest - inp.p_baro, "pressure_difference")
+        r.findings += list(c.findings)
+    text = batch_text(sc)
+    if text is not None:
+        duties = dict(DUTY_CLASSES)
+        duties[inp.duty.key] = inp.duty
+        b = size_batch(read_line_list(text), inp.liquid, inp.p_baro, duties)
+        r.tables["batch"] = batch_rows(b)
+        for x in b:
+            if x.verdict in ("pass", "check"):
+                r.add(f"batch.{x.tag}.bore", f"line {x.tag}: bore", x.bore, "diameter")
+    r.method("Pipe friction", FRICTION_METHOD["name"] + "; " + " ".join(FRICTION_METHOD["references"]))
+    r.method("Sizing criteria", f"{inp.duty.label}: {inp.duty.source}")
+    r.method("Erosional velocity", f"API RP 14E (1991), C = {inp.erosional_C:g}")
+    r.method("Pipe dimensions", "ASME B36.10M / B36.19M and the other tables of fluids.piping")
+    r.method("Fittings", "kit.core.fittings: Crane TP-410 (2009) valves, Rennels & Hudson (2012) "
+             "geometry, Hooper (1981) 2-K, Darby (2001) 3-K, as chosen per row")
+    r.cautions = cautions_for(*caution_topics(inp))
+    return r
+
+
+def caution_topics(inp: SizingInputs) -> tuple:
+    """Caution topics of a sizing: pressure, water hammer, vacuum; flammable if it is."""
+    topics = ("pressure", "water_hammer", "vacuum")
+    if getattr(inp.state, "flammable", False) or getattr(inp.liquid, "flammable", False):
+        topics += ("flammable",)
+    return topics
