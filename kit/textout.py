@@ -17,7 +17,28 @@ import textwrap
 
 from kit import units
 
-__all__ = ["summary", "findings_text"]
+__all__ = ["summary", "findings_text", "limit_text"]
+
+
+def limit_text(f, system: str = "SI") -> str:
+    """A finding's limit in the display system when it has numeric bounds, else its words.
+
+    >>> from kit.core.findings import Finding, Severity
+    >>> f = Finding(Severity.PASS, "s", "velocity", 2.0, "m/s", "1–3 m/s", "r", "src",
+    ...             low=1.0, high=3.0)
+    >>> limit_text(f, "US")
+    '3.28–9.84 ft/s'
+    """
+    kind = _SI_TO_KIND.get(f.unit)
+    low, high = getattr(f, "low", None), getattr(f, "high", None)
+    if kind is None or (low is None and high is None):
+        return f.limit
+    if low is not None and high is not None:
+        a = units.fmt(low, kind, system, with_unit=False)
+        return f"{a}–{units.fmt(high, kind, system)}"
+    if high is not None:
+        return f"<= {units.fmt(high, kind, system)}"
+    return f">= {units.fmt(low, kind, system)}"
 
 
 def findings_text(findings, system: str = "SI", width: int = 100) -> list[str]:
@@ -26,7 +47,7 @@ def findings_text(findings, system: str = "SI", width: int = 100) -> list[str]:
     for f in findings:
         value = _finding_value(f, system)
         line = (f"{f.severity.value.upper():5s} {f.subject}: {f.quantity} {value} "
-                f"(limit {f.limit}); {f.rule} [{f.source}]")
+                f"(limit {limit_text(f, system)}); {f.rule} [{f.source}]")
         out += textwrap.wrap(line, width, subsequent_indent="      ")
     return out
 

@@ -62,7 +62,8 @@ class DutyClass:
         else:
             sev, rule = Severity.PASS, f"{self.label}: velocity within range"
         out.append(Finding(sev, subject, "velocity", V, "m/s",
-                           f"{self.v_min:.3g}–{self.v_max:.3g} m/s", rule, self.source))
+                           f"{self.v_min:.3g}–{self.v_max:.3g} m/s", rule, self.source,
+                           low=self.v_min, high=self.v_max))
         if dp_per_m > self.dp_max:
             sev, rule = Severity.FAIL, f"{self.label}: pressure drop above limit"
         elif dp_per_m > self.dp_max * (1 - MARGINAL_FRACTION):
@@ -70,7 +71,8 @@ class DutyClass:
         else:
             sev, rule = Severity.PASS, f"{self.label}: pressure drop within limit"
         out.append(Finding(sev, subject, "pressure drop per length", dp_per_m, "Pa/m",
-                           f"<= {self.dp_max * 100 / 1000:.3g} kPa/100 m", rule, self.source))
+                           f"<= {self.dp_max * 100 / 1000:.3g} kPa/100 m", rule, self.source,
+                           high=self.dp_max))
         return out
 
 
@@ -133,4 +135,4 @@ def erosional_findings(subject: str, V: float, rho: float, C: float = 100.0) -> 
     else:
         sev = Severity.PASS
     return [Finding(sev, subject, "velocity", V, "m/s", f"<= {Ve:.2f} m/s (C = {C:g})",
-                    "erosional velocity", _API_14E)]
+                    "erosional velocity", _API_14E, high=Ve)]

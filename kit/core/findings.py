@@ -55,6 +55,9 @@ class Finding:
         The rule in words.
     source : str
         Where the rule comes from; "common practice, no source" where that is so.
+    low, high : float or None
+        The limit's bounds in the same SI unit as ``value`` where it has numeric bounds, so a
+        display can show the limit in its own units; ``limit`` stays the words of record.
     """
 
     severity: Severity
@@ -65,13 +68,18 @@ class Finding:
     limit: str
     rule: str
     source: str
+    low: float | None = None
+    high: float | None = None
 
     def as_dict(self) -> dict:
-        return {
+        out = {
             "severity": self.severity.value, "subject": self.subject,
             "quantity": self.quantity, "value": self.value, "unit": self.unit,
             "limit": self.limit, "rule": self.rule, "source": self.source,
         }
+        if self.low is not None or self.high is not None:
+            out["low"], out["high"] = self.low, self.high
+        return out
 
 
 def worst(findings) -> Severity:

@@ -331,11 +331,11 @@ def vapour_findings(profile: Profile, pv: float | None, margin_head: float = 2.0
     elif margin < margin_head:
         out.append(Finding(Severity.CHECK, subject, "pressure above vapour pressure", margin, "m",
                            f">= {margin_head:.3g} m", "lowest pressure close to vapour pressure",
-                           src))
+                           src, low=margin_head))
     else:
         out.append(Finding(Severity.PASS, subject, "pressure above vapour pressure", margin, "m",
                            f">= {margin_head:.3g} m", "lowest pressure clear of vapour pressure",
-                           src))
+                           src, low=margin_head))
     if low.p < profile.p_baro and low.p > pv:
         out.append(Finding(Severity.CHECK, subject, "gauge pressure", low.p_gauge, "Pa",
                            ">= 0 Pa(g)", "below atmospheric: siphon or suction lift; air "

@@ -25,6 +25,7 @@ import traitlets
 from kit import units
 from kit.core.findings import Severity, cautions_for, worst
 from kit.panels.base import Panel
+from kit.textout import limit_text
 
 __all__ = ["FindingsView", "findings_html", "cautions_html", "finding_value_text", "UNIT_KINDS"]
 
@@ -74,7 +75,7 @@ def findings_html(findings, system: str = "SI") -> str:
             f"<td>{html.escape(f.subject)}</td>",
             f"<td>{html.escape(f.quantity)}</td>",
             f"<td>{html.escape(finding_value_text(f.value, f.unit, system))}</td>",
-            f"<td>{html.escape(f.limit)}</td>",
+            f"<td>{html.escape(limit_text(f, system))}</td>",
             f"<td>{html.escape(f.rule)}</td>",
             f'<td class="hl-source">{html.escape(f.source)}</td>',
         ]
