@@ -110,12 +110,20 @@ from kit.core.drain import (
 )
 from kit.core.findings import cautions_for
 from kit.core.friction import FRICTION_METHOD
-from kit.errors import DimensionError, HeadlineError, ScenarioError, check_range
+from kit.errors import (
+    DimensionError,
+    HeadlineError,
+    InputError,
+    ScenarioError,
+    check_choice,
+    check_range,
+)
 from kit.results import Results
 
 __all__ = [
     "TANK_SHAPES", "SURFACES", "OUTLET_TYPES", "HOT_LIQUID_T", "DrainInputs", "Case",
-    "DrainStudy", "build_tank", "build_outlet", "inputs", "study", "compute",
+    "DrainStudy", "LineRoute", "build_tank", "build_outlet", "inputs", "study", "compute",
+    "drain_inputs", "resize_pipe", "results_of", "times_rows", "caution_topics",
 ]
 
 #: Scenario tank shapes -> (kit.core.tank shape, orientation).
@@ -588,6 +596,187 @@ def study(sc, inp: DrainInputs | None = None) -> DrainStudy:
     return DrainStudy(inp, base, cmp)
 
 
+# ------------------------------------------------------- inputs from core objects (the app)
+
+def drain_inputs(tank, liquid, T: float, outlet, *, start: float, target: float,
+                 levels=(), p_atm: float = 101325.0, surface: str = "vented",
+                 p_surface: float | None = None, vent: Vent | None = None,
+                 compare_outlet=None, compare_label: str | None = None) -> DrainInputs:
+    """:class:`DrainInputs` from core objects (SI), checked as :func:`inputs` checks a scenario.
+
+    The notebook's app builds its inputs here from the panels' values; a bad value raises
+    the kit's error naming the field (not a ScenarioError).
+
+    Parameters
+    ----------
+    tank : Tank
+    liquid : Liquid or UserLiquid
+        Its state is taken at ``T`` and the surface pressure.
+    T : float
+        Liquid temperature [K].
+    outlet : OrificeOutlet or PipedOutlet
+    start, target : float
+        Start and target levels on the tank's level datum [m], target below start.
+    levels : sequence of (str, float)
+        Levels of interest: (label, level [m]) between target and start.
+    p_atm : float
+        Atmospheric pressure [Pa].
+    surface : str
+        'vented', 'padded' or 'vacuum'.
+    p_surface : float, optional
+        Absolute surface pressure [Pa] of a padded (above ``p_atm``) or vacuum (below) tank.
+    vent : Vent, optional
+    compare_outlet : OrificeOutlet or PipedOutlet, optional
+        The what-if outlet; ``compare_label`` names it.
+
+    Returns
+    -------
+    inputs : DrainInputs
+
+    Examples
+    --------
+    >>> from kit.core.liquids import make_liquid
+    >>> from kit.core.tank import vertical_cylinder
+    >>> inp = drain_inputs(vertical_cylinder(1.0, 2.0), make_liquid("water"), 293.15,
+    ...                    OrificeOutlet(0.025, 0.61), start=2.0, target=0.0)
+    >>> round(study(None, inp).result.total_time, 0)
+    1675.0
+    """
+    check_choice("surface", surface, SURFACES)
+    p_atm = check_range("atmospheric pressure", p_atm, "Pa", low=3e4, high=1.2e5)
+    if surface == "vented":
+        p_surface = p_atm
+    elif p_surface is None:
+        raise InputError("surface pressure", None, f"is needed for a {surface} surface")
+    elif surface == "padded":
+        p_surface = check_range("padded surface pressure", p_surface, "Pa", low=p_atm,
+                                high=1e8)
+    else:
+        p_surface = check_range("vacuum surface pressure", p_surface, "Pa", low=0.0,
+                                high=p_atm, high_inclusive=False)
+    start = check_range("start level", start, "m", low=tank.h_min, high=tank.h_max,
+                        low_inclusive=True)
+    target = check_range("target level", target, "m", low=tank.h_min, high=start,
+                         low_inclusive=True, high_inclusive=False)
+    seen, out = set(), []
+    for label, z in levels:
+        label = str(label).strip()
+        check_range(f"level of interest '{label}'", z, "m", low=target, high=start,
+                    low_inclusive=True)
+        if not label or label in seen or label in ("start", "target"):
+            raise InputError("level of interest label", label,
+                             "must be given once each and not be 'start' or 'target'")
+        seen.add(label)
+        out.append((label, float(z)))
+    state = liquid.state(T, max(p_surface, 1.0))
+    if compare_outlet is not None and not compare_label:
+        compare_label = "what-if"
+    return DrainInputs(tank, liquid, state, p_atm, surface, p_surface, vent, start, target,
+                       tuple(out), outlet, compare_outlet, compare_label)
+
+
+@dataclass(frozen=True)
+class LineRoute:
+    """The layout of an outlet line: its segments in order, to rebuild it with another pipe,
+    fittings, length or fall.
+
+    :meth:`build` keeps the segments' names and stations and scales their lengths and rises
+    so that they add up to the new developed length and fall; every segment gets the same
+    pipe. A fitting equal to one of the route's own keeps its segment; any other fitting goes
+    into the first segment (the losses are then taken at the inlet, which gives the lowest
+    pressures downstream: the conservative side for the siphon / vapour-pressure check).
+
+    Parameters
+    ----------
+    name : str
+    start_station : str
+    segments : tuple of Segment
+        The line as given (the scenario's).
+    """
+
+    name: str
+    start_station: str
+    segments: tuple
+
+    @classmethod
+    def of(cls, line) -> LineRoute:
+        """The route of a :class:`kit.core.line.Line`."""
+        return cls(line.name, line.start_station, tuple(line.segments))
+
+    @property
+    def length(self) -> float:
+        """Developed length [m]."""
+        return float(sum(s.length for s in self.segments))
+
+    @property
+    def fall(self) -> float:
+        """Drop from the inlet to the discharge end [m] (minus the line's rise)."""
+        return float(-sum(s.rise for s in self.segments))
+
+    @property
+    def pipe(self):
+        """The first segment's pipe."""
+        return self.segments[0].pipe
+
+    @property
+    def one_pipe(self) -> bool:
+        """True when every segment has the same pipe."""
+        return all(s.pipe == self.pipe for s in self.segments)
+
+    @property
+    def fittings(self) -> tuple:
+        """Every segment's fittings, in order."""
+        return tuple(f for s in self.segments for f in s.fittings)
+
+    def build(self, pipe, fittings, length: float, fall: float, inlet_elevation: float,
+              name: str | None = None):
+        """A :class:`kit.core.line.Line` of this route with ``pipe``, ``fittings`` (tuple of
+        Fitting), developed ``length`` [m] and ``fall`` [m] (inlet minus discharge
+        elevation), starting at ``inlet_elevation`` [m] on the tank datum."""
+        from kit.core.line import Line, Segment
+
+        length = check_range("outlet line length", length, "m", low=0.0, high=1e6)
+        fall = check_range("outlet line fall", fall, "m", low=-length, high=length,
+                           low_inclusive=True)
+        L0, F0 = self.length, self.fall
+        k_len = 1.0 if abs(length - L0) <= 1e-12 * L0 else length / L0
+        n = len(self.segments)
+        if abs(fall - F0) <= 1e-12 * max(abs(F0), 1.0):
+            rises = [s.rise for s in self.segments]
+        elif F0 != 0.0:
+            rises = [s.rise * fall / F0 for s in self.segments]
+        else:
+            rises = [0.0] * (n - 1) + [-fall]
+        placed: list[list] = [[] for _ in range(n)]
+        pool = [(i, f) for i, s in enumerate(self.segments) for f in s.fittings]
+        for fit in fittings:
+            for j, (i, f) in enumerate(pool):
+                if f == fit:
+                    placed[i].append(fit)
+                    del pool[j]
+                    break
+            else:
+                placed[0].append(fit)
+        segs = tuple(Segment(s.name, pipe, s.length * k_len, rise, tuple(fs), s.end_station)
+                     for s, rise, fs in zip(self.segments, rises, placed, strict=True))
+        return Line(name or self.name, segs, self.start_station, inlet_elevation)
+
+
+def resize_pipe(pipe, size):
+    """``pipe`` at another size: a nominal size (str) of the same standard and schedule for a
+    catalogue pipe, or a bore [m] (float) for a custom one; same material and condition."""
+    from kit.core import pipes
+
+    if isinstance(size, str):
+        if pipe.standard is None:
+            raise InputError("what-if size", size, "is a nominal size; a custom-bore pipe "
+                             "takes a bore")
+        return pipes.catalogue_pipe(pipe.standard, size, pipe.schedule, pipe.material,
+                                    pipe.condition)
+    return pipes.custom_pipe(float(size), pipe.material, pipe.condition,
+                             roughness=pipe.roughness_override)
+
+
 # ---------------------------------------------------------------------------- results
 
 def _bore(outlet) -> float:
@@ -614,7 +803,40 @@ def _time_to(res: DrainResult, z: float) -> float:
 
 def compute(sc) -> Results:
     """The tank-drainage results of a scenario (values, findings, methods, cautions, tables)."""
-    s = study(sc)
+    return results_of(study(sc), sc.doc)
+
+
+def times_rows(s: DrainStudy) -> list[dict]:
+    """One row per level (start, levels of interest, target): label, level [m], volume
+    remaining [m³], time [s] through the outlet, and ``compare_time`` [s] with a what-if
+    (``inf`` below a level where outflow stops)."""
+    inp, c = s.inputs, s.compare
+    rows = []
+    for label, z in [("start", inp.start), *inp.levels, ("target", inp.target)]:
+        row = {"label": label, "level": z, "volume_remaining": inp.tank.volume(z),
+               "time": _time_to(s.result, z)}
+        if c is not None:
+            row["compare_time"] = _time_to(c.result, z)
+        rows.append(row)
+    return rows
+
+
+def caution_topics(inp: DrainInputs) -> tuple:
+    """Keys of :data:`kit.core.findings.CAUTIONS` that apply to these inputs."""
+    topics = ["drain", "vacuum"]
+    if isinstance(inp.outlet, PipedOutlet):
+        topics.append("water_hammer")
+    if getattr(inp.state, "flammable", False):
+        topics.append("flammable")
+    return tuple(topics)
+
+
+def results_of(s: DrainStudy, doc: dict | None = None) -> Results:
+    """The :class:`~kit.results.Results` of a drain study (what :func:`compute` reports).
+
+    ``doc`` is the scenario document, used only to say where the barometric pressure came
+    from; the notebook's app passes None for a study built from its panels.
+    """
     inp, res = s.inputs, s.result
     tank, state = inp.tank, inp.state
     r = Results("tank_drainage")
@@ -669,15 +891,7 @@ def compute(sc) -> Results:
                        for f in cr.findings]
 
     # tables
-    rows = [("start", inp.start), *inp.levels, ("target", inp.target)]
-    times = []
-    for label, z in rows:
-        row = {"label": label, "level": z, "volume_remaining": tank.volume(z),
-               "time": _time_to(res, z)}
-        if c is not None:
-            row["compare_time"] = _time_to(c.result, z)
-        times.append(row)
-    r.tables["times"] = times
+    r.tables["times"] = times_rows(s)
     r.tables["history"] = _history(res)
     if c is not None:
         r.tables["compare_history"] = _history(c.result)
@@ -701,14 +915,11 @@ def compute(sc) -> Results:
         r.method("Vent capacity", "orifice equation ΔP = ρ_air/2·(Q/(Cd·A))², air inflow equal "
                  "to the peak liquid outflow")
     r.method("Liquid properties", "; ".join(f"{k}: {v}" for k, v in state.sources.items()))
-    if "barometric_pressure" not in sc.doc.get("site", {}):
+    if doc is not None and "barometric_pressure" not in doc.get("site", {}):
         r.method("Barometric pressure", "U.S. Standard Atmosphere 1976")
 
     # cautions: the standing ones for drains, then the result's own, without repeats
-    topics = ["drain", "vacuum"]
-    if piped:
-        topics.append("water_hammer")
-    cautions = cautions_for(*topics)
+    cautions = cautions_for(*[t for t in caution_topics(inp) if t != "flammable"])
     for case in (s.base, c):
         if case is not None:
             cautions += [t for t in case.result.cautions if t not in cautions]
