@@ -663,7 +663,8 @@ def drain(tank, outlet, state, start: float, target: float, p_surface: float = P
     if reached:
         findings.append(Finding(Severity.PASS, subject, "level reached", target, "m",
                                 f"<= {target:g} m",
-                                f"reaches the target in {t[-1]:.6g} s", "energy balance"))
+                                f"reaches the target in {t[-1]:.0f} s ({t[-1] / 60:.1f} min)",
+                                "energy balance"))
     else:
         findings.append(Finding(Severity.FAIL, subject, "level reached", stop, "m",
                                 f"<= {target:g} m",

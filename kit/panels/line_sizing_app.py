@@ -688,6 +688,12 @@ class LineSizingApp(widgets.VBox):
             self._render_criteria_charts()
             self._show_size()
 
+    @classmethod
+    def record_figures(cls, sc) -> list:
+        """The three charts as drawn from the scenario itself (not from panel edits), as static
+        ``go.Figure`` copies for the record — so the record's figures match its results."""
+        return cls.from_scenario(sc).figures()
+
     def figures(self) -> list:
         """Static copies (plotly ``go.Figure``) of the three charts, for the record."""
         import plotly.graph_objects as go
