@@ -1,0 +1,513 @@
+"""The pump-selection notebook's composite: inputs, chart, comparison tables, findings.
+
+:class:`PumpSelectionApp` holds a working copy of the scenario. Its inputs — the liquid
+temperature range and a :class:`~kit.panels.pump_editor.PumpEditor` for one candidate at a
+time — write back into that copy (strings with units, as a scenario file holds them), and every
+change re-runs :func:`kit.studies.pump_selection.study` and redraws. Nothing here computes
+hydraulics: the study does.
+
+Sections (each a widget the notebook shows in its own cell):
+
+- ``inputs``: liquid temperatures, the candidate to edit, the editor (CSS ``hl-pump-inputs``);
+- ``chart``: pump curves over the system band with operating points and each pump's preferred
+  operating region, and NPSH available against required below (CSS ``hl-pump-chart``);
+- ``comparison``: the candidates side by side, and every operating point (``hl-candidates``,
+  ``hl-points``);
+- ``control_view``: throttling against speed control for the recommended pump (``hl-control``);
+- ``findings``: a :class:`~kit.panels.findings_view.FindingsView` with the cautions.
+
+Example
+-------
+>>> from kit.notebook import open_scenario
+>>> app = PumpSelectionApp(open_scenario("kestrel_ridge_booster.toml"))
+>>> app.study.recommended
+'KR-A end-suction 1480 rpm'
+"""
+
+from __future__ import annotations
+
+import html
+from functools import lru_cache
+
+import ipywidgets as widgets
+import numpy as np
+
+from kit import units
+from kit.core.findings import Severity
+from kit.core.operating import BEP_REGIONS
+from kit.panels.base import KIT_ERRORS, check_system, error_html, error_widget
+from kit.panels.charts import to_display
+from kit.panels.display import DisplaySwitch
+from kit.panels.fields import QuantityField
+from kit.panels.findings_view import FindingsView
+from kit.panels.pump_editor import PumpEditor
+from kit.panels.tables import Column, results_table_html, unit_label
+from kit.studies import pump_selection as ps
+
+__all__ = ["PumpSelectionApp", "CANDIDATE_ROWS", "candidates_html", "POINT_COLUMNS", "CONTROL_COLUMNS",
+           "PUMP_COLOURS", "CAUTION_TOPICS"]
+
+#: Our own plain colours, one per candidate.
+PUMP_COLOURS = ("#1f4e9c", "#c0392b", "#2f7d32", "#8e44ad", "#d68910", "#17707a")
+#: Caution topics the findings view shows.
+CAUTION_TOPICS = ("pump", "cavitation", "pressure", "water_hammer", "vacuum")
+
+#: Rows of the candidates table (one column per pump): key(s), label, quantity kind.
+CANDIDATE_ROWS = (
+    (("verdict_text",), "verdict", None),
+    (("Q_min", "Q_max"), "flow delivered, least – most", "flow"),
+    (("H_min", "H_max"), "head, least – most", "head"),
+    (("eta_min", "eta_max"), "efficiency, least – most", "fraction"),
+    (("bep_min", "bep_max"), "Q / Q_BEP, least – most", "ratio"),
+    (("npsh_margin",), "NPSH margin (NPSHa − NPSHr), least", "head"),
+    (("power_max",), "shaft power, most", "power"),
+    (("motor",), "motor rating", "power"),
+    (("energy",), "energy per year", "energy"),
+    (("cost_text",), "cost per year", None),
+    (("findings",), "findings not passing", None),
+)
+POINT_COLUMNS = (
+    Column("pump", "pump"), Column("condition", "condition"), Column("Q", "flow", "flow"),
+    Column("H", "head", "head"), Column("eta", "efficiency", "fraction"),
+    Column("npsha", "NPSHa", "head"), Column("npshr", "NPSHr", "head"),
+    Column("margin", "NPSH margin", "head"), Column("power", "shaft power", "power"),
+    Column("bep", "Q/Q_BEP"), Column("note", "worst finding"),
+)
+CONTROL_COLUMNS = (
+    Column("method", "control"), Column("speed", "speed", "speed", digits=4),
+    Column("Q", "flow", "flow"), Column("H_pump", "pump head", "head"),
+    Column("valve_head", "head burned in valve", "head"),
+    Column("eta", "pump efficiency", "fraction"), Column("shaft_power", "shaft power", "power"),
+    Column("input_power", "power drawn", "power"),
+    Column("energy", "energy per year", "energy", digits=4),
+)
+
+_STYLE = """<style>
+.hl-pump-app table.hl-results{border-collapse:collapse;font-size:0.9em;margin:4px 0}
+.hl-pump-app table.hl-results td,.hl-pump-app table.hl-results th{border:1px solid #ccc;
+ padding:2px 6px;text-align:left;vertical-align:top}
+.hl-pump-app table.hl-results th{background:#f2f2f2}
+.hl-pump-app .hl-error-text{color:#8a1111}
+.hl-pump-app table.hl-candidates-table td{min-width:11em;max-width:22em}
+.hl-pump-app table.hl-candidates-table td.hl-pass{background:#d7f0d7;color:#1d5e1d}
+.hl-pump-app table.hl-candidates-table td.hl-check{background:#fbe8c0;color:#7a4d00}
+.hl-pump-app table.hl-candidates-table td.hl-fail{background:#f6cccc;color:#8a1111;font-weight:bold}
+.hl-pump-app table.hl-results caption{caption-side:top;text-align:left;font-size:0.9em}
+</style>"""
+
+
+@lru_cache(maxsize=64)
+def _affine(kind: str, system: str) -> tuple[float, float]:
+    """(offset, scale) from SI to the display unit of ``kind`` (pure; cached)."""
+    a = float(to_display(0.0, kind, system))
+    return a, float(to_display(1.0, kind, system)) - a
+
+
+def _shown(values, kind: str, system: str) -> np.ndarray:
+    a, b = _affine(kind, system)
+    return a + b * np.asarray(values, dtype=float)
+
+
+def _nice_top(x: float) -> float:
+    """A round axis end at or above ``x`` (1, 2, 2.5, 5 × 10^n)."""
+    if not np.isfinite(x) or x <= 0:
+        return 1.0
+    e = 10 ** np.floor(np.log10(x))
+    for m in (1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 8.0, 10.0):
+        if m * e >= x:
+            return float(m * e)
+    return float(10 * e)
+
+
+def _value_text(v, kind, system: str) -> str:
+    if v is None or (isinstance(v, float) and not np.isfinite(v)):
+        return "—"
+    if kind is None:
+        return str(v)
+    if kind == "ratio":
+        return f"{v:.2f}"
+    digits = 4 if kind == "energy" else 3
+    return units.fmt(float(v), kind, system, digits=digits, with_unit=False)
+
+
+def candidates_html(rows, system: str = "SI", caption: str = "") -> str:
+    """The candidates side by side: one column per pump, one row per quantity (SI rows in).
+
+    >>> "<th>P-1</th>" in candidates_html([{"pump": "P-1", "Q_min": 0.01, "Q_max": 0.02}])
+    True
+    """
+    head = "".join(f"<th>{html.escape(str(r['pump']))}</th>" for r in rows)
+    body = []
+    for keys, label, kind in CANDIDATE_ROWS:
+        unit = "" if kind in (None, "ratio") else unit_label(kind, system)
+        name = html.escape(label) + (f" [{html.escape(unit)}]" if unit else "")
+        cells = []
+        for r in rows:
+            vals = [_value_text(r.get(k), kind, system) for k in keys]
+            text = " – ".join(vals) if len(vals) == 2 and vals[0] != vals[1] else vals[0]
+            css = ""
+            if keys == ("verdict_text",):
+                css = f' class="hl-{html.escape(str(r.get("verdict", "")))}"'
+            cells.append(f"<td{css}>{html.escape(text)}</td>")
+        body.append(f"<tr><th>{name}</th>{''.join(cells)}</tr>")
+    cap = f"<caption>{html.escape(caption)}</caption>" if caption else ""
+    return (f'<table class="hl-results hl-candidates-table">{cap}<thead><tr><th>candidate</th>'
+            f'{head}</tr></thead><tbody>{"".join(body)}</tbody></table>')
+
+
+class PumpSelectionApp(widgets.VBox):
+    """Candidates against the system band; edit a pump or the liquid temperature and see it all.
+
+    Parameters
+    ----------
+    scenario : kit.scenario.Scenario
+        A ``pump_selection`` scenario (a working copy is kept; the original is not changed).
+    system : str, optional
+        Display system, 'SI' or 'US' (default the scenario's).
+
+    Attributes
+    ----------
+    scenario : Scenario
+        The working copy, with every accepted edit written back (save it with
+        :func:`kit.scenario.save`).
+    study : kit.studies.pump_selection.PumpStudy
+        The last study run.
+    results : kit.results.Results
+        Its results (for the record and the text summary).
+    t_min, t_max : QuantityField
+        Liquid temperature range (CSS ``hl-temp-min``, ``hl-temp-max``).
+    choice : ipywidgets.Dropdown
+        The candidate the editor shows (CSS ``hl-pump-choice``).
+    editor : PumpEditor
+    figure : plotly FigureWidget
+        Head and NPSH charts, one figure (two rows on a shared flow axis).
+    message : ipywidgets.HTML
+        Study-level message (CSS ``hl-error``): what was refused, with the kit's words.
+    """
+
+    def __init__(self, scenario, system: str | None = None):
+        import plotly.graph_objects as go
+        from plotly.subplots import make_subplots
+
+        self.scenario = scenario.copy()
+        self.display = check_system(system or scenario.display_system)
+        self.pumps = ps.build_pumps(self.scenario)
+        self.study = ps.study(self.scenario, pumps=self.pumps)
+        self.results = ps.results_of(self.scenario, self.study)
+        self._busy = False
+
+        liq = self.scenario.doc.get("liquid", {})
+        t_lo = liq.get("temperature_min", liq.get("temperature", ""))
+        t_hi = liq.get("temperature_max", liq.get("temperature", ""))
+        self.t_min = QuantityField("temperature", "Liquid temperature, lowest", text=t_lo,
+                                   system=self.display, field="liquid.temperature_min")
+        self.t_max = QuantityField("temperature", "Liquid temperature, highest", text=t_hi,
+                                   system=self.display, field="liquid.temperature_max")
+        self.t_min.add_class("hl-temp-min")
+        self.t_max.add_class("hl-temp-max")
+        self.choice = widgets.Dropdown(options=[(p.name, i) for i, p in enumerate(self.pumps)],
+                                       value=0, description="Edit pump",
+                                       layout=widgets.Layout(width="36em"))
+        self.choice.add_class("hl-pump-choice")
+        self.editor = PumpEditor(self.scenario.doc["pumps"][0], system=self.display, title="")
+        self.message = error_widget()
+        self.style = widgets.HTML(_STYLE)
+
+        # The figure is built whole (traces, data, layout) before it becomes a FigureWidget:
+        # a FigureWidget not yet shown keeps only the last of several add-trace messages, so
+        # traces added one by one reach the browser without their names and later restyles
+        # miss. Built whole, everything is in the widget's initial state.
+        fig = make_subplots(
+            rows=2, cols=1, shared_xaxes=True, row_heights=[0.64, 0.36], vertical_spacing=0.07,
+            subplot_titles=("pump curves on the system band", "NPSH available and required"))
+        fig.update_layout(height=860, template="plotly_white",
+                          margin=dict(l=70, r=20, t=50, b=40),
+                          legend=dict(orientation="h", x=0.0, y=-0.09, yanchor="top"),
+                          hovermode="closest")
+        self.figure = fig
+        self._build_traces(go)
+        self._draw()
+        self.figure = go.FigureWidget(fig)
+        self.candidates = widgets.HTML("")
+        self.candidates.add_class("hl-candidates")
+        self.points_table = widgets.HTML("")
+        self.points_table.add_class("hl-points")
+        self.control_table = widgets.HTML("")
+        self.control_table.add_class("hl-control")
+        self.findings = FindingsView(topics=CAUTION_TOPICS, system=self.display)
+
+        self.inputs = widgets.VBox([
+            self.style,
+            widgets.HTML("<b>Liquid</b>"), self.t_min, self.t_max,
+            widgets.HTML("<b>Candidate pumps</b>"), self.choice, self.editor, self.message])
+        self.inputs.add_class("hl-pump-inputs")
+        self.chart = widgets.VBox([self.figure])
+        self.chart.add_class("hl-pump-chart")
+        self.comparison = widgets.VBox([
+            self.style, widgets.HTML("<b>Candidates over the band</b>"), self.candidates,
+            widgets.HTML("<b>Every operating point</b>"), self.points_table])
+        self.control_view = widgets.VBox([self.style, self.control_table])
+        self.switch = DisplaySwitch([], system=self.display)
+        super().__init__([self.switch, self.inputs, self.chart, self.comparison,
+                          self.control_view, self.findings])
+        for w in (self, self.inputs, self.comparison, self.control_view):
+            w.add_class("hl-pump-app")
+        self.switch.targets.append(self)
+        self._render()
+        self._wire()
+
+    # ------------------------------------------------------------------ wiring
+    def _wire(self) -> None:
+        self.t_min.observe(self._on_temperature, names="value")
+        self.t_max.observe(self._on_temperature, names="value")
+        self.editor.observe(self._on_pump, names="value")
+        self.choice.observe(self._on_choice, names="value")
+
+    def _on_temperature(self, change) -> None:
+        if self._busy:
+            return
+        if self.t_min.value is None or self.t_max.value is None:
+            self._refuse("liquid temperature", "is not a temperature yet")
+            return
+        liq = self.scenario.doc.setdefault("liquid", {})
+        liq.pop("temperature", None)
+        liq["temperature_min"] = self.t_min.text
+        liq["temperature_max"] = self.t_max.text
+        self.scenario._built.clear()
+        self.recompute()
+
+    def _on_pump(self, change) -> None:
+        if self._busy:
+            return
+        i = int(self.choice.value)
+        if self.editor.value is None:
+            self._refuse(f"pump '{self.pumps[i].name}'", "has an input refused (see beside the "
+                         "table)")
+            return
+        self.scenario.doc["pumps"][i] = dict(self.editor.doc)
+        self.pumps[i] = self.editor.value
+        self.recompute()
+
+    def _on_choice(self, change) -> None:
+        self._busy = True
+        try:
+            self.editor.load(self.scenario.doc["pumps"][int(change["new"])])
+        finally:
+            self._busy = False
+
+    def _refuse(self, what: str, why: str) -> None:
+        self.message.value = error_html(f"{what} {why}; the results shown are for the last "
+                                        "accepted inputs")
+
+    # ------------------------------------------------------------------ computing
+    def recompute(self) -> None:
+        """Re-run the study on the working scenario and redraw; kit errors are shown."""
+        try:
+            study = ps.study(self.scenario, pumps=self.pumps)
+            results = ps.results_of(self.scenario, study)
+        except KIT_ERRORS as exc:
+            self.message.value = error_html(f"{exc}; the results shown are for the last "
+                                            "accepted inputs")
+            return
+        self.message.value = ""
+        self.study, self.results = study, results
+        self._render()
+
+    # ------------------------------------------------------------------ drawing
+    def _build_traces(self, go) -> None:
+        fig = self.figure
+        n_cond = len(self.study.band.conditions)
+        grey = "rgba(90,90,90,0.55)"
+        fig.add_trace(go.Scatter(name="system band, lowest", mode="lines", showlegend=False,
+                                 line=dict(color=grey, width=1), hoverinfo="skip"), 1, 1)
+        fig.add_trace(go.Scatter(name="system band (8 curves)", mode="lines", fill="tonexty",
+                                 fillcolor="rgba(120,120,120,0.18)",
+                                 line=dict(color=grey, width=1), hoverinfo="skip"), 1, 1)
+        for i in range(n_cond):
+            fig.add_trace(go.Scatter(name=f"system curve {i + 1}", mode="lines",
+                                     showlegend=False, line=dict(color=grey, width=0.7,
+                                                                 dash="dot")), 1, 1)
+        fig.add_trace(go.Scatter(name="required flow", mode="lines",
+                                 line=dict(color="black", width=1.2, dash="dash")), 1, 1)
+        for k, pump in enumerate(self.pumps):
+            c = PUMP_COLOURS[k % len(PUMP_COLOURS)]
+            fig.add_trace(go.Scatter(name=f"{pump.name}: POR", mode="lines", legendgroup=f"p{k}",
+                                     line=dict(color=c, width=9), opacity=0.3,
+                                     hoverinfo="skip"), 1, 1)
+            fig.add_trace(go.Scatter(name=pump.name, mode="lines", legendgroup=f"p{k}",
+                                     line=dict(color=c, width=2)), 1, 1)
+            fig.add_trace(go.Scatter(name=f"{pump.name}: operating points", mode="markers",
+                                     legendgroup=f"p{k}", showlegend=False,
+                                     marker=dict(color=c, size=9, symbol="circle",
+                                                 line=dict(color="white", width=1)),
+                                     hovertemplate="%{text}<extra></extra>"), 1, 1)
+        fig.add_trace(go.Scatter(name="NPSHa, least", mode="lines", showlegend=False,
+                                 line=dict(color="#555", width=1), hoverinfo="skip"), 2, 1)
+        fig.add_trace(go.Scatter(name="NPSH available (band)", mode="lines", fill="tonexty",
+                                 fillcolor="rgba(60,140,200,0.20)",
+                                 line=dict(color="#555", width=1), hoverinfo="skip"), 2, 1)
+        for k, pump in enumerate(self.pumps):
+            c = PUMP_COLOURS[k % len(PUMP_COLOURS)]
+            fig.add_trace(go.Scatter(name=f"{pump.name}: NPSHr", mode="lines",
+                                     legendgroup=f"p{k}", showlegend=False,
+                                     line=dict(color=c, width=2, dash="dash")), 2, 1)
+            fig.add_trace(go.Scatter(name=f"{pump.name}: NPSHa at operating points",
+                                     mode="markers", legendgroup=f"p{k}", showlegend=False,
+                                     marker=dict(color=c, size=8, symbol="x"),
+                                     hovertemplate="%{text}<extra></extra>"), 2, 1)
+
+    def _render(self) -> None:
+        self._draw()
+        self._tables()
+        fs = sorted(self.results.findings, key=lambda f: -Severity(f.severity).rank)
+        self.findings.show(fs)
+
+    def _draw(self) -> None:
+        s, sysm, fig = self.study, self.display, self.figure
+        band = s.band
+
+        def fx(q):
+            return _shown(q, "flow", sysm)
+
+        def fh(h):
+            return _shown(h, "head", sysm)
+
+        Q = band.Q
+        data = [(Q, band.lower), (Q, band.upper)]
+        data += [(Q, band.H[i]) for i in range(len(band.conditions))]
+        h_top = max(float(np.max(band.upper)), max(p.shutoff_head for p in s.pumps))
+        if s.required_flow is not None:
+            data.append((np.array([s.required_flow, s.required_flow]),
+                         np.array([0.0, 1.5 * h_top])))
+        else:
+            data.append((np.array([]), np.array([])))
+        texts = {}
+        por = BEP_REGIONS["low_specific_speed"]["por"]
+        for pump in s.pumps:
+            Qp = np.linspace(0.0, pump.q_end, 121)
+            if getattr(pump, "has_efficiency", False):
+                qb = pump.bep[0]
+                qs = np.linspace(max(por[0] * qb, 0.0), min(por[1] * qb, pump.q_end), 41)
+                data.append((qs, pump.head(qs)))
+            else:
+                data.append((np.array([]), np.array([])))
+            data.append((Qp, pump.head(Qp)))
+            good = s.good(pump.name)
+            data.append((np.array([p.Q for p in good]), np.array([p.H for p in good])))
+            texts[len(data) - 1] = [self._hover(pump.name, p) for p in good]
+        data.append((Q, s.npsha.min(axis=0)))
+        data.append((Q, s.npsha.max(axis=0)))
+        n_top = float(np.max(s.npsha))
+        for pump in s.pumps:
+            Qp = np.linspace(0.0, pump.q_end, 121)
+            if getattr(pump, "has_npshr", False):
+                r = pump.npshr(Qp)
+                n_top = max(n_top, float(np.max(r)))
+                data.append((Qp, r))
+            else:
+                data.append((np.array([]), np.array([])))
+            good = s.good(pump.name)
+            data.append((np.array([p.Q for p in good]), np.array([p.npsha for p in good])))
+            texts[len(data) - 1] = [self._hover(pump.name, p) for p in good]
+        with fig.batch_update():
+            for i, (trace, (x, y)) in enumerate(zip(fig.data, data, strict=True)):
+                trace.x = fx(x)
+                trace.y = fh(y)
+                if i in texts:
+                    trace.text = texts[i]
+            for i, cond in enumerate(band.conditions):
+                fig.data[2 + i].name = f"system: {cond.label}"
+                fig.data[2 + i].hovertemplate = f"{html.escape(cond.label)}<extra></extra>"
+            fig.layout.xaxis2.title.text = f"flow [{unit_label('flow', sysm)}]"
+            fig.layout.yaxis.title.text = f"head [{unit_label('head', sysm)}]"
+            fig.layout.yaxis2.title.text = f"NPSH [{unit_label('head', sysm)}]"
+            q_top = max(float(Q[-1]), max(p.q_end for p in s.pumps))
+            fig.layout.xaxis.range = [0, _nice_top(float(fx(q_top)) * 1.02)]
+            fig.layout.xaxis2.range = fig.layout.xaxis.range
+            fig.layout.yaxis.range = [0, _nice_top(float(fh(1.08 * h_top)))]
+            fig.layout.yaxis2.range = [0, _nice_top(float(fh(1.15 * n_top)))]
+
+    def _hover(self, name: str, p) -> str:
+        sysm = self.display
+        parts = [f"<b>{html.escape(name)}</b>", html.escape(p.label),
+                 f"Q = {units.fmt(p.Q, 'flow', sysm)}, H = {units.fmt(p.H, 'head', sysm)}"]
+        if np.isfinite(p.efficiency):
+            parts.append(f"efficiency {p.efficiency * 100:.1f} %, Q/Q_BEP {p.bep_fraction:.2f}")
+        if np.isfinite(p.npshr):
+            parts.append(f"NPSHa {units.fmt(p.npsha, 'head', sysm)}, "
+                         f"NPSHr {units.fmt(p.npshr, 'head', sysm)}")
+        return "<br>".join(parts)
+
+    def _tables(self) -> None:
+        s, sysm = self.study, self.display
+        rows = []
+        for row in s.candidate_rows():
+            r = dict(row)
+            v = row["verdict"].upper()
+            r["verdict_text"] = v + (" (recommended)" if row["pump"] == s.recommended else "")
+            if row.get("energy_kWh") is not None:
+                r["energy"] = row["energy_kWh"] * 3.6e6
+            rows.append(r)
+        cap = ("each pump over the 8 conditions of the band (static head × liquid temperature "
+               "× pipe condition); energy and cost at the mean power drawn over the band, "
+               f"{s.hours:g} h a year")
+        rec = (f"<div class='hl-recommended'>Recommended: <b>{html.escape(s.recommended)}</b> "
+               "(passes every check, least energy among those that pass)</div>"
+               if s.recommended else
+               "<div class='hl-recommended'><b>No candidate passes every check.</b></div>")
+        self.candidates.value = candidates_html(rows, sysm, caption=cap) + rec
+        self.points_table.value = results_table_html(s.point_rows(), POINT_COLUMNS, sysm)
+        self.control_table.value = self._control_html()
+
+    def _control_html(self) -> str:
+        s, sysm = self.study, self.display
+        if s.control is None:
+            why = ("no candidate passes every check" if s.recommended is None else
+                   "no required flow or running hours in the scenario, or the duty cannot be met")
+            return (f"<b>Throttling against speed control</b><div>Not compared: "
+                    f"{html.escape(why)}.</div>")
+        c = s.control
+        rows = [{"method": "throttling valve, full speed", "speed": c.throttle.speed_rpm,
+                 "Q": c.throttle.Q, "H_pump": c.throttle.H_pump,
+                 "valve_head": c.throttle.valve_head, "eta": c.throttle.efficiency,
+                 "shaft_power": c.throttle.shaft_power, "input_power": c.throttle.input_power,
+                 "energy": c.throttle.annual_energy},
+                {"method": "variable speed drive", "speed": c.speed.speed_rpm, "Q": c.speed.Q,
+                 "H_pump": c.speed.H_pump, "valve_head": c.speed.valve_head,
+                 "eta": c.speed.efficiency, "shaft_power": c.speed.shaft_power,
+                 "input_power": c.speed.input_power, "energy": c.speed.annual_energy}]
+        saving = c.saving_kWh
+        cost = saving * s.tariff
+        head = (f"<b>Throttling against speed control</b> — {html.escape(s.recommended)} at the "
+                f"required flow {html.escape(units.fmt(c.Q_req, 'flow', sysm))} on the system "
+                f"curve '{html.escape(s.control_label or '')}' (the highest head at that flow)")
+        tail = (f"<div>Speed control saves {saving:,.0f} kWh a year "
+                f"({html.escape(s.currency)} {cost:,.0f} at {s.tariff:g} per kWh); drive "
+                f"losses {100 * (1 - c.speed.drive_efficiency):.1f} % (fluids.VFD_efficiency, "
+                "generic PWM drive table). Efficiency is moved along the affinity parabola, "
+                "which flatters speed control at low speed ratios.</div>")
+        return head + results_table_html(rows, CONTROL_COLUMNS, sysm) + tail
+
+    # ------------------------------------------------------------------ public helpers
+    def set_system(self, system: str) -> None:
+        """Show every chart and table in 'SI' or 'US' (inputs keep their text)."""
+        self.display = check_system(system)
+        for w in (self.t_min, self.t_max, self.editor):
+            w.set_system(system)
+        self.findings.set_system(system)
+        self._render()
+
+    def static_figures(self) -> list:
+        """The chart as a static ``plotly.graph_objects.Figure`` (for the record)."""
+        import plotly.graph_objects as go
+
+        fig = go.Figure(self.figure)
+        fig.update_layout(title=dict(text=f"{self.scenario.title}: pump curves, system band "
+                                          "and NPSH"))
+        return [fig]
+
+    def summary_text(self) -> str:
+        """The scenario's text summary (kit.textout.summary) for the current results."""
+        from kit.textout import summary
+
+        return summary(self.scenario, self.results, self.display)

@@ -1,0 +1,588 @@
+"""Pump selection study: candidate pumps against the system band of a scenario.
+
+For each candidate pump (or set of pumps in parallel or series) and every condition of the
+system band — static head (min / max) × liquid temperature (min / max) × pipe (new / aged) —
+the operating point is found where the pump curve meets the system curve (Brent 1973, via
+:func:`kit.core.operating.operating_point`); at each point NPSH available is compared with
+NPSH required (ANSI/HI 9.6.1 margins, from memory), and the flow with the pump's
+best-efficiency flow (ANSI/HI 9.6.3 preferred operating region, from memory). The motor is
+sized for the largest shaft power over the band (:func:`kit.core.motors.select_motor`) and
+checked against the power at the end of the datasheet curve (run-out); annual energy and cost
+use the mean input power over the band's conditions (an even spread of time is assumed). For
+the recommended pump, throttling and speed control are compared at the required flow on the
+band's highest system curve (:func:`kit.core.operating.compare_control`).
+
+Scenario keys of this kind (besides the common ones of :mod:`kit.scenario`)::
+
+    [duty]       flow = "150 m3/h"  (required at every condition)
+                 npsh_application = "water_wastewater"   (key of NPSH_MARGINS)
+    [operation]  hours_per_year = "4000 h", tariff = 0.16, currency = "EUR",
+                 motor_series = "IEC"
+    [[pumps]]    name, speed = "1480 rpm", impeller = "315 mm", arrangement = "single",
+                 count = 1, flow = [...], head = [...], efficiency = [...], npshr = [...],
+                 run_speed = "1400 rpm" (optional), trim = "300 mm" (optional)
+
+Example
+-------
+>>> from kit.notebook import scenario_path
+>>> from kit import scenario as scn
+>>> s = study(scn.load(scenario_path("kestrel_ridge_booster.toml")))
+>>> len(s.pumps), len(s.band.conditions)
+(3, 8)
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from kit import scenario as scn
+from kit import units
+from kit.core.findings import Finding, Severity, cautions_for, worst
+from kit.core.friction import FRICTION_METHOD
+from kit.errors import DimensionError, HeadlineError, InputError, NoSolutionError, ScenarioError
+from kit.results import Results
+
+__all__ = [
+    "ARRANGEMENTS", "PUMP_KEYS", "GRID_POINTS", "POLISH_TOL", "PumpStudy", "build_pumps",
+    "build_pump", "study", "compute", "control_condition", "findings_summary", "results_of",
+]
+
+#: Pump arrangements a ``[[pumps]]`` table may name.
+ARRANGEMENTS = ("single", "parallel", "series")
+
+#: Keys a ``[[pumps]]`` table may hold (anything else is refused, naming the key).
+PUMP_KEYS = ("name", "speed", "impeller", "arrangement", "count", "flow", "head", "efficiency",
+             "npshr", "power", "run_speed", "trim", "note")
+
+_LIST_KIND = {"flow": "flow", "head": "head", "efficiency": "fraction", "npshr": "head",
+              "power": "power"}
+#: The first words of a PumpCurve error's field -> the scenario key it came from.
+_FIELD_KEY = (("flow of pump", "flow"), ("head of pump", "head"),
+              ("efficiency of pump", "efficiency"), ("NPSHr of pump", "npshr"),
+              ("power of pump", "power"), ("speed of pump", "speed"),
+              ("impeller diameter", "impeller"), ("trimmed impeller", "trim"))
+
+
+def _list(sec: dict, key: str, prefix: str, required: bool = True):
+    vals = sec.get(key)
+    if vals is None:
+        if required:
+            raise ScenarioError(f"{prefix}{key}", "is missing (a list of values with units)")
+        return None
+    if not isinstance(vals, list):
+        raise ScenarioError(f"{prefix}{key}", "must be a list of values with units")
+    out = []
+    for i, v in enumerate(vals):
+        try:
+            out.append(units.parse(v, _LIST_KIND[key], f"{prefix}{key}[{i}]"))
+        except (HeadlineError, DimensionError) as exc:
+            raise ScenarioError(f"{prefix}{key}[{i}]", str(exc)) from None
+    return out
+
+
+def _key_of(exc: InputError, key: str) -> str:
+    """The scenario key a PumpCurve error points at: 'pumps[0].head[2]' for 'point 3'."""
+    fld = str(getattr(exc, "field", ""))
+    for start, sub in _FIELD_KEY:
+        if fld.startswith(start):
+            m = re.search(r"point (\d+)", fld)
+            return f"{key}.{sub}" + (f"[{int(m.group(1)) - 1}]" if m else "")
+    return key
+
+
+def build_pump(sec: dict, key: str):
+    """One datasheet pump (and its arrangement) from a ``[[pumps]]`` table.
+
+    Returns a :class:`kit.core.pump.PumpCurve`, or a :class:`kit.core.pump.PumpSet` for
+    ``count`` > 1 pumps in parallel or series. Errors are :class:`ScenarioError` naming the
+    key (``pumps[1].head[2]``).
+    """
+    from kit.core.pump import PumpCurve, parallel, series
+
+    if not isinstance(sec, dict):
+        raise ScenarioError(key, "must be a table with name, speed, impeller, flow and head")
+    for k in sec:
+        if k not in PUMP_KEYS:
+            raise ScenarioError(f"{key}.{k}", f"is not a pump key (choices: {', '.join(PUMP_KEYS)})")
+    name = str(sec.get("name") or key)
+    arrangement = sec.get("arrangement", "single")
+    if arrangement not in ARRANGEMENTS:
+        raise ScenarioError(f"{key}.arrangement",
+                            f"must be one of {', '.join(ARRANGEMENTS)}, not {arrangement!r}")
+    count = sec.get("count", 1)
+    if isinstance(count, bool) or not isinstance(count, int) or not 1 <= count <= 8:
+        raise ScenarioError(f"{key}.count", f"must be a whole number from 1 to 8, not {count!r}")
+    if arrangement == "single" and count != 1:
+        raise ScenarioError(f"{key}.count", f"must be 1 for a single pump, not {count}")
+    if arrangement != "single" and count < 2:
+        raise ScenarioError(f"{key}.count", f"must be at least 2 pumps in {arrangement}, "
+                            f"not {count}")
+    Q = _list(sec, "flow", f"{key}.")
+    H = _list(sec, "head", f"{key}.")
+    eta = _list(sec, "efficiency", f"{key}.", required=False)
+    npshr = _list(sec, "npshr", f"{key}.", required=False)
+    power = _list(sec, "power", f"{key}.", required=False)
+    for what, vals in (("head", H), ("efficiency", eta), ("npshr", npshr), ("power", power)):
+        if vals is not None and len(vals) != len(Q):
+            raise ScenarioError(f"{key}.{what}", f"must have one value per flow point "
+                                f"({len(Q)} flows), not {len(vals)}")
+    speed = scn.quantity(sec, "speed", "speed", prefix=f"{key}.")
+    dia = scn.quantity(sec, "impeller", "diameter", prefix=f"{key}.")
+    try:
+        pump = PumpCurve(Q, H, speed_rpm=speed, diameter=dia, efficiency=eta, npshr=npshr,
+                         power=power, name=name)
+        if "run_speed" in sec:
+            pump = pump.at_speed(scn.quantity(sec, "run_speed", "speed", prefix=f"{key}."))
+        if "trim" in sec:
+            pump = pump.trimmed(scn.quantity(sec, "trim", "diameter", prefix=f"{key}."))
+        if arrangement == "single":
+            return pump
+        combine = parallel if arrangement == "parallel" else series
+        return combine([pump] * count, name=f"{count} × {name} in {arrangement}")
+    except ScenarioError:
+        raise
+    except InputError as exc:
+        raise ScenarioError(_key_of(exc, key), str(exc)) from None
+    except HeadlineError as exc:
+        raise ScenarioError(key, str(exc)) from None
+
+
+def build_pumps(sc) -> list:
+    """Every candidate of ``[[pumps]]`` (names must differ)."""
+    pumps = sc.doc.get("pumps")
+    if not pumps or not isinstance(pumps, list):
+        raise ScenarioError("pumps", "must list at least one candidate pump ([[pumps]] tables)")
+    out = [build_pump(p, f"pumps[{i}]") for i, p in enumerate(pumps)]
+    seen = set()
+    for i, p in enumerate(out):
+        if p.name in seen:
+            raise ScenarioError(f"pumps[{i}].name", f"repeats the name {p.name!r}; names must "
+                                "differ")
+        seen.add(p.name)
+    return out
+
+
+def control_condition(system, Q_req: float):
+    """The band condition with the highest system head at the required flow.
+
+    Speed control and throttling are compared on it: the pump must meet the duty there, and
+    the saving found on it is the least over the band (conservative).
+    """
+    conds = system.conditions()
+    heads = [float(system.curve(np.array([Q_req]), c)[0]) for c in conds]
+    return conds[int(np.argmax(heads))]
+
+
+@dataclass
+class PumpStudy:
+    """Everything the notebook draws: the band, and per pump its points and summary.
+
+    Dicts are keyed by pump name. ``points[name][i]`` is the
+    :class:`kit.core.operating.OperatingPoint` at ``band.conditions[i]`` (None where none).
+    ``energy[name]`` is ``(kWh per year, cost per year, mean input power [W])`` or None.
+    """
+
+    system: object
+    Q: np.ndarray
+    band: object
+    pumps: list
+    points: dict
+    errors: dict
+    motors: dict
+    energy: dict
+    control: object
+    control_label: str | None
+    recommended: str | None
+    verdicts: dict
+    required_flow: float | None
+    findings: dict = field(default_factory=dict)
+    npsha: np.ndarray | None = None     # (conditions, flows) NPSH available [m]
+    hours: float = 0.0
+    tariff: float = 0.0
+    currency: str = ""
+    application: str = "general"
+
+    def pump(self, name: str):
+        return next(p for p in self.pumps if p.name == name)
+
+    def good(self, name: str) -> list:
+        return [p for p in self.points[name] if p is not None]
+
+    def candidate_rows(self) -> list[dict]:
+        """One row per pump for the comparison table (SI values, text where text)."""
+        rows = []
+        for pump in self.pumps:
+            n = pump.name
+            good = self.good(n)
+            row = {"pump": n, "verdict": self.verdicts[n],
+                   "arrangement": getattr(pump, "arrangement", "single")}
+            if good:
+                qs = [p.Q for p in good]
+                hs = [p.H for p in good]
+                effs = [p.efficiency for p in good if np.isfinite(p.efficiency)]
+                margins = [p.npsha - p.npshr for p in good if np.isfinite(p.npshr)
+                           and np.isfinite(p.npsha)]
+                bep = [p.bep_fraction for p in good if np.isfinite(p.bep_fraction)]
+                powers = [p.shaft_power for p in good if np.isfinite(p.shaft_power)]
+                row.update(Q_min=min(qs), Q_max=max(qs), H_min=min(hs), H_max=max(hs),
+                           eta_min=min(effs, default=None), eta_max=max(effs, default=None),
+                           bep_min=min(bep, default=None), bep_max=max(bep, default=None),
+                           npsh_margin=min(margins, default=None),
+                           power_max=max(powers, default=None))
+            m = self.motors.get(n)
+            row["motor"] = m.rating if m else None
+            e = self.energy.get(n)
+            if e:
+                row["energy_kWh"], row["cost"], row["input_power"] = e
+                row["cost_text"] = f"{self.currency} {e[1]:,.0f}".strip()
+            row["findings"] = findings_summary(self.findings[n])
+            rows.append(row)
+        return rows
+
+    def point_rows(self) -> list[dict]:
+        """One row per pump and band condition (SI values)."""
+        rows = []
+        for pump in self.pumps:
+            for cond, p in zip(self.band.conditions, self.points[pump.name], strict=True):
+                row = {"pump": pump.name, "condition": cond.label}
+                if p is None:
+                    row["note"] = dict(self.errors[pump.name]).get(cond.label, "no point")
+                else:
+                    row.update(Q=p.Q, H=p.H, eta=p.efficiency, npsha=p.npsha, npshr=p.npshr,
+                               margin=p.npsha - p.npshr, power=p.shaft_power,
+                               bep=p.bep_fraction,
+                               note=worst(p.findings).value)
+                rows.append(row)
+        return rows
+
+
+def findings_summary(findings) -> str:
+    """Non-passing findings grouped by quantity, worst first: 'FAIL NPSH margin (4 ×); ...'.
+
+    >>> findings_summary([])
+    'all checks pass'
+    """
+    groups: dict[str, list] = {}
+    for f in findings:
+        if f.severity == Severity.PASS:
+            continue
+        q = "NPSH margin" if f.quantity.startswith("NPSH margin") else f.quantity
+        groups.setdefault(q, []).append(f)
+    parts = []
+    for q, fs in groups.items():
+        sev = worst(fs)
+        subjects = {f.subject for f in fs if f.severity == sev}
+        parts.append((sev.rank, f"{sev.value.upper()} {q} ({len(subjects)} ×)"))
+    parts.sort(key=lambda t: -t[0])
+    return "; ".join(p for _, p in parts) or "all checks pass"
+
+
+#: Flows on which the band is evaluated exactly before interpolation [-].
+GRID_POINTS = 241
+#: Largest miss of the spline against the exact curve at a point taken without polishing [m].
+POLISH_TOL = 1e-9
+
+
+class _Curves:
+    """System head and NPSH available of one band condition, exact on a grid, splined between.
+
+    The system curve is smooth above the laminar/turbulent transition, so a cubic spline
+    through exact values on :data:`GRID_POINTS` flows (scipy ``CubicSpline``, not-a-knot;
+    de Boor 1978, *A Practical Guide to Splines*) is within ~1e-9 m of the exact curve near an
+    operating point. Each point found on the spline is checked against the exact curve and
+    polished where it misses (see :func:`_points`), so the reported point is the exact
+    intersection to ~1e-9 m of head.
+    """
+
+    def __init__(self, Q, H, npsha):
+        from scipy.interpolate import CubicSpline
+
+        self.Q = Q
+        self.H = H
+        self.npsha_grid = npsha
+        self._h = CubicSpline(Q, H)
+        self._n = CubicSpline(Q, npsha)
+
+    def head(self, q, shift: float = 0.0):
+        q = np.asarray(q, dtype=float)
+        return self._h(np.clip(q, 0.0, self.Q[-1])) + shift
+
+    def npsha(self, q):
+        q = np.asarray(q, dtype=float)
+        return self._n(np.clip(q, 0.0, self.Q[-1]))
+
+
+def _curves(system, band) -> list:
+    """One :class:`_Curves` per band condition (the band's exact grid values)."""
+    return [_Curves(band.Q, band.H[i], system.npsh_available(band.Q, c))
+            for i, c in enumerate(band.conditions)]
+
+
+def _points(system, pumps, band, curves, application) -> tuple[dict, dict]:
+    """Operating points of every pump over the band's conditions, and the errors.
+
+    Per condition: every pump's point on the splined curves, then one exact evaluation of the
+    system curve and NPSHa at those flows (one vectorized call for all pumps); where the spline
+    misses the exact values by more than :data:`POLISH_TOL`, the point is found again on the
+    spline shifted by the difference there.
+    """
+    from kit.core.operating import operating_point
+
+    points = {p.name: [None] * len(band.conditions) for p in pumps}
+    errors = {p.name: [] for p in pumps}
+    for i, cond in enumerate(band.conditions):
+        rho = system.state(cond.T).rho
+        cv = curves[i]
+        first = {}
+        for pump in pumps:
+            if pump.q_end > band.Q[-1] * (1 + 1e-12):
+                raise InputError("band grid", band.Q[-1], "must reach every pump's last "
+                                 "datasheet flow", "m³/s")
+            try:
+                first[pump.name] = operating_point(
+                    pump, cv.head, rho=rho, npsha=cv.npsha, label=cond.label,
+                    npsh_application=application)
+            except NoSolutionError as exc:
+                errors[pump.name].append((cond.label, exc.reason))
+        if not first:
+            continue
+        names = list(first)
+        q0 = np.array([first[n].Q for n in names])
+        exact_h = system.curve(q0, cond)
+        exact_n = system.npsh_available(q0, cond)
+        for j, name in enumerate(names):
+            dh = float(exact_h[j] - cv.head(q0[j]))
+            dn = float(exact_n[j] - cv.npsha(q0[j]))
+            if abs(dh) <= POLISH_TOL and abs(dn) <= POLISH_TOL:
+                points[name][i] = first[name]  # the spline is the exact curve there
+                continue
+            pump = next(p for p in pumps if p.name == name)
+            points[name][i] = operating_point(
+                pump, lambda q, _d=dh, _c=cv: _c.head(q, _d), rho=rho,
+                npsha=lambda q, _d=dn, _c=cv: _c.npsha(q) + _d, label=cond.label,
+                npsh_application=application)
+    return points, errors
+
+
+def study(sc, pumps=None, system=None) -> PumpStudy:
+    """Operating points of every pump over the system band, NPSH, BEP, motor and energy.
+
+    Parameters
+    ----------
+    sc : kit.scenario.Scenario
+        A ``pump_selection`` scenario [-]
+    pumps : list of PumpCurve or PumpSet, optional
+        Candidates; default those of ``[[pumps]]`` [-]
+    system : kit.core.system.System, optional
+        Default the scenario's [-]
+
+    Returns
+    -------
+    PumpStudy
+    """
+    from kit.core.motors import motor_efficiency, select_motor
+    from kit.core.operating import (
+        NPSH_MARGINS,
+        annual_cost,
+        annual_energy,
+        compare_control,
+        joules_to_kWh,
+    )
+
+    system = system or scn.build_system(sc)
+    pumps = pumps if pumps is not None else build_pumps(sc)
+    duty = sc.doc.get("duty", {})
+    q_req = scn.quantity(duty, "flow", "flow", prefix="duty.") if "flow" in duty else None
+    application = duty.get("npsh_application", "general")
+    if application not in NPSH_MARGINS:
+        raise ScenarioError("duty.npsh_application", f"must be one of "
+                            f"{', '.join(NPSH_MARGINS)}, not {application!r}")
+    op = sc.doc.get("operation", {})
+    hours = scn.quantity(op, "hours_per_year", "time", default=0.0, prefix="operation.") / 3600.0
+    if not 0.0 <= hours <= 8784.0:
+        raise ScenarioError("operation.hours_per_year", f"must be 0 to 8784 h, not {hours:g} h")
+    tariff = op.get("tariff", 0.0)
+    if isinstance(tariff, bool) or not isinstance(tariff, (int, float)) or tariff < 0:
+        raise ScenarioError("operation.tariff", f"must be a number ≥ 0 (cost per kWh), not "
+                            f"{tariff!r}")
+    tariff = float(tariff)
+    series = op.get("motor_series", "IEC")
+    from kit.core.motors import MOTOR_SERIES
+
+    if series not in MOTOR_SERIES:
+        raise ScenarioError("operation.motor_series",
+                            f"must be one of {', '.join(MOTOR_SERIES)}, not {series!r}")
+    q_top = max(p.q_end for p in pumps)
+    Q = np.linspace(0.0, q_top, GRID_POINTS)
+    band = system.band(Q)
+    curves = _curves(system, band)
+    npsha_grid = np.stack([c.npsha_grid for c in curves])
+    points, errors = _points(system, pumps, band, curves, application)
+    motors, energy, verdicts, findings = {}, {}, {}, {}
+    for pump in pumps:
+        pts, errs = points[pump.name], errors[pump.name]
+        good = [p for p in pts if p is not None]
+        fl: list[Finding] = []
+        for p in good:
+            fl += list(p.findings)
+        members = getattr(pump, "pumps", [pump])
+        for m in {id(x): x for x in members}.values():
+            fl += m.fit_findings()
+        for label, reason in errs:
+            fl.append(Finding(Severity.FAIL, f"pump '{pump.name}' at {label}", "operating point",
+                              float("nan"), "-", "an intersection of pump and system curves",
+                              reason, "pump and system curves"))
+        pmax = max((p.shaft_power for p in good if np.isfinite(p.shaft_power)), default=None)
+        m_sel = None
+        if pmax:
+            try:
+                m_sel = select_motor(pmax, series=series)
+            except HeadlineError as exc:
+                fl.append(Finding(Severity.FAIL, f"pump '{pump.name}'", "motor", pmax, "W",
+                                  "a standard rating", str(exc), "kit.core.motors"))
+        motors[pump.name] = m_sel
+        if m_sel is not None and getattr(pump, "has_efficiency", False):
+            p_end = float(pump.power(pump.q_end, max(system.state(system.T_min).rho,
+                                                     system.state(system.T_max).rho)))
+            ok = p_end <= m_sel.rating
+            fl.append(Finding(
+                Severity.PASS if ok else Severity.CHECK, f"pump '{pump.name}'",
+                "shaft power at the last datasheet flow", p_end, "W",
+                f"<= {m_sel.rating / 1e3:g} kW motor rating",
+                "motor carries the pump to the end of its curve (non-overloading)" if ok else
+                "the motor would overload if the system lets the pump run out to the end of its "
+                "curve (a burst or drained main, a bypass open); size for run-out or protect "
+                "the motor", "common practice, no source"))
+        energy[pump.name] = None
+        if good and m_sel is not None and hours > 0:
+            eta_m = _motor_eta(motor_efficiency, m_sel.rating)
+            shaft = [p.shaft_power for p in good if np.isfinite(p.shaft_power)]
+            if shaft:
+                mean_shaft = float(np.mean(shaft))
+                e_kwh = joules_to_kWh(annual_energy(mean_shaft, hours, eta_m))
+                energy[pump.name] = (e_kwh, annual_cost(e_kwh, tariff), mean_shaft / eta_m)
+        if q_req is not None:
+            short = [p for p in good if p.Q < q_req * (1 - 1e-9)]
+            qmin = min((p.Q for p in good), default=float("nan"))
+            fl.append(Finding(
+                Severity.FAIL if short or errs else Severity.PASS, f"pump '{pump.name}'",
+                "flow, lowest over band", qmin, "m³/s", f">= {q_req:.4g} m³/s",
+                "delivers the required flow at every condition of the band" if not short else
+                "falls short of the required flow at some condition of the band", "the duty"))
+        findings[pump.name] = fl
+        verdicts[pump.name] = worst(fl).value
+    order = {"pass": 0, "check": 1, "fail": 2}
+    ranked = sorted(pumps, key=lambda p: (order[verdicts[p.name]],
+                                          energy[p.name][0] if energy[p.name] else 1e30))
+    rec = ranked[0].name if ranked and verdicts[ranked[0].name] != "fail" else None
+    control, control_label = None, None
+    if rec is not None and q_req is not None and hours > 0:
+        pump = next(p for p in pumps if p.name == rec)
+        if not hasattr(pump, "members_at"):
+            cond = control_condition(system, q_req)
+            control_label = cond.label
+            rating = motors[rec].rating if motors[rec] else None
+            try:
+                control = compare_control(
+                    pump, lambda q, _c=cond: system.curve(q, _c), q_req,
+                    rho=system.state(cond.T).rho, hours=hours,
+                    motor_efficiency=_motor_eta(motor_efficiency, rating) if rating else 0.9,
+                    drive_rating=rating)
+            except HeadlineError:
+                control = None
+    return PumpStudy(system, Q, band, pumps, points, errors, motors, energy, control,
+                     control_label, rec, verdicts, q_req, findings, npsha_grid, hours, tariff,
+                     str(op.get("currency", "")), application)
+
+
+def _motor_eta(motor_efficiency, rating: float) -> float:
+    """Full-load efficiency of a 4-pole enclosed motor, clamped into the CSA table's range."""
+    from kit.core.motors import MOTOR_EFFICIENCY_VALID
+
+    lo, hi = MOTOR_EFFICIENCY_VALID["P_W"]
+    return motor_efficiency(min(max(rating, lo), hi))
+
+
+def compute(sc) -> Results:
+    """The pump-selection results of a scenario (values, findings, methods, cautions)."""
+    return results_of(sc, study(sc))
+
+
+def results_of(sc, s: PumpStudy) -> Results:
+    """The :class:`Results` of a study already run (the notebook's app re-uses its study)."""
+    r = Results("pump_selection")
+    temps = (s.system.T_min, s.system.T_max)
+    r.add("system.static_head.min", "static head, minimum",
+          min(s.system.static_head("min", T) for T in temps), "head")
+    r.add("system.static_head.max", "static head, maximum",
+          max(s.system.static_head("max", T) for T in temps), "head")
+    r.add("site.barometric_pressure", "barometric pressure", s.system.p_baro, "pressure")
+    if s.required_flow is not None:
+        r.add("duty.flow", "required flow", s.required_flow, "flow")
+    for i, pump in enumerate(s.pumps):
+        name = pump.name
+        k = f"pumps[{i}]"
+        rows = [row for row in s.candidate_rows() if row["pump"] == name][0]
+        r.add(f"{k}.verdict", f"{name}: verdict (0 pass, 1 check, 2 fail)",
+              {"pass": 0, "check": 1, "fail": 2}[s.verdicts[name]], "dimensionless")
+        for key, label, kind in (("Q_min", "flow, lowest over band", "flow"),
+                                 ("Q_max", "flow, highest over band", "flow"),
+                                 ("H_max", "head, highest over band", "head"),
+                                 ("eta_min", "efficiency, lowest", "fraction"),
+                                 ("npsh_margin", "NPSH margin, least", "head"),
+                                 ("power_max", "shaft power, highest", "power"),
+                                 ("motor", "motor rating", "power"),
+                                 ("energy_kWh", "energy per year", "energy"),
+                                 ("cost", f"cost per year [{s.currency or 'currency'}]",
+                                  "dimensionless")):
+            v = rows.get(key)
+            if v is not None and np.isfinite(v):
+                r.add(f"{k}.{key}", f"{name}: {label}", v * 3.6e6 if key == "energy_kWh" else v,
+                      kind)
+        r.findings += list(s.findings[name])
+    r.tables["candidates"] = [{kk: vv for kk, vv in row.items() if kk != "cost_text"}
+                              for row in s.candidate_rows()]
+    r.tables["operating_points"] = s.point_rows()
+    if s.recommended:
+        r.tables["recommended"] = [{"pump": s.recommended}]
+    if s.control is not None:
+        c = s.control
+        r.add("control.throttle.energy", "throttling: energy per year",
+              c.throttle.annual_energy, "energy")
+        r.add("control.speed.energy", "speed control: energy per year",
+              c.speed.annual_energy, "energy")
+        r.add("control.speed.rpm", "speed control: speed needed", c.speed.speed_rpm, "speed")
+        r.add("control.throttle.valve_head", "throttling: head burned in the valve",
+              c.throttle.valve_head, "head")
+        r.findings += list(c.findings)
+        r.tables["control"] = [
+            {"method": cc.method, "speed": cc.speed_rpm, "Q": cc.Q, "H_pump": cc.H_pump,
+             "valve_head": cc.valve_head, "eta": cc.efficiency, "shaft_power": cc.shaft_power,
+             "input_power": cc.input_power, "energy_kWh": cc.annual_energy_kWh,
+             "condition": s.control_label}
+            for cc in (c.throttle, c.speed)]
+    r.method("System curve", "Energy equation with head loss; Darcy–Weisbach. "
+             + " ".join(FRICTION_METHOD["references"]))
+    r.method("Operating point", "Brent, R. P. (1973). Algorithms for Minimization without "
+             "Derivatives, ch. 4 (scipy.optimize.brentq)")
+    r.method("Pump curve fit", "polynomial least squares of the datasheet points "
+             "(numpy.polynomial.Polynomial.fit)")
+    r.method("Affinity laws", "Karassik, Messina, Cooper & Heald (2008), Pump Handbook, 4th ed., "
+             "ch. 2 (from memory)")
+    r.method("NPSH margin", "ANSI/HI 9.6.1 guideline (from memory)")
+    r.method("Operating region", "ANSI/HI 9.6.3 guideline (from memory)")
+    r.method("Motor rating", "IEC 60072-1 rated outputs (from memory); API 610 driver margin "
+             "(from memory); CSA full-load efficiency via fluids.CSA_motor_efficiency")
+    r.method("Drive losses", "fluids.VFD_efficiency (generic PWM drive table)")
+    r.method("Barometric pressure", "U.S. Standard Atmosphere 1976")
+    r.cautions = cautions_for("pump", "cavitation", "pressure", "water_hammer", "vacuum")
+    liquid = s.system.liquid
+    flammable = getattr(liquid, "flammable", None)
+    if flammable is None:
+        flammable = getattr(getattr(liquid, "spec", None), "flammable", False)
+    if flammable:
+        r.cautions += cautions_for("flammable")[1:]
+    return r
