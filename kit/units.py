@@ -197,7 +197,7 @@ def parse(text, kind: str, field: str = "value", p_baro: float = 101325.0,
     if unit == "":
         if default_unit is None:
             raise UnitParseError(field, text, f"{expected} (a unit is required)")
-        unit = default_unit
+        unit = _normalise(default_unit)
     per100 = re.match(r"^(.*)/\(100 (m|ft)\)$", unit)
     if per100:  # "kPa/100 m": a pressure per hundred lengths
         value, unit = value / 100.0, f"{per100.group(1)}/{per100.group(2)}"

@@ -199,10 +199,19 @@ def write_notebook(lab: Lab, relpath: str, sources: list[str]) -> Path:
 
 
 def kernel_idle_and_connected(lab: Lab, relpath: str) -> bool:
-    """True when the notebook's kernel has a websocket connection and is idle."""
-    sessions = lab.api("/api/sessions") or []
+    """True when the notebook's kernel has a websocket connection and is idle.
+
+    The server answers 500 to the kernel list while a kernel is still starting: that is
+    "not yet", and the caller polls again."""
+    try:
+        sessions = lab.api("/api/sessions") or []
+        kernels = lab.api("/api/kernels") or []
+    except urllib.error.HTTPError as exc:
+        if exc.code >= 500:
+            return False
+        raise
     ids = {s["kernel"]["id"] for s in sessions if s.get("path", "").endswith(relpath)}
-    for k in lab.api("/api/kernels") or []:
+    for k in kernels:
         if k["id"] in ids and k.get("connections", 0) > 0 and k.get("execution_state") == "idle":
             return True
     return False
