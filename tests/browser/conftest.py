@@ -160,19 +160,16 @@ def lab(tmp_path_factory):
 
 
 @pytest.fixture(scope="session")
-def browser(tmp_path_factory):
+def browser(tmp_path_factory, playwright_driver):
     """Headless Chromium (/usr/bin/chromium) through Playwright's sync API, fresh profile."""
     if not CHROMIUM.exists():
         pytest.skip(NO_CHROMIUM)
-    from playwright.sync_api import sync_playwright
-
     profile = tmp_path_factory.mktemp("chromium-profile")
-    with sync_playwright() as pw:
-        context = pw.chromium.launch_persistent_context(
-            str(profile), executable_path=str(CHROMIUM), headless=True, args=CHROMIUM_ARGS,
-            viewport={"width": 1400, "height": 1000})
-        yield context
-        context.close()
+    context = playwright_driver.chromium.launch_persistent_context(
+        str(profile), executable_path=str(CHROMIUM), headless=True, args=CHROMIUM_ARGS,
+        viewport={"width": 1400, "height": 1000})
+    yield context
+    context.close()
 
 
 @pytest.fixture
