@@ -127,6 +127,14 @@ def _as_points(field: str, values, n: int | None, unit: str) -> np.ndarray:
     return arr
 
 
+def _non_negative_points(field: str, values, n: int, unit: str) -> np.ndarray:
+    """:func:`_as_points`, each value also at least 0 (``'<field> point i'`` names a bad one)."""
+    arr = _as_points(field, values, n, unit)
+    for i, v in enumerate(arr):
+        check_range(f"{field} point {i + 1}", v, unit, low=0.0, low_inclusive=True)
+    return arr
+
+
 def _fit(curve: str, Q: np.ndarray, y: np.ndarray, degree: int) -> CurveFit:
     poly = Polynomial.fit(Q, y, degree)
     res = poly(Q) - y
@@ -240,17 +248,9 @@ class PumpCurve:
                 check_range(f"efficiency of pump '{name}' point {i + 1}", e, "-", low=0.0, high=1.0)
             self.efficiency_points = eta
         if npshr is not None:
-            npr = _as_points(f"NPSHr of pump '{name}'", npshr, Q.size, "m")
-            for i, v in enumerate(npr):
-                check_range(f"NPSHr of pump '{name}' point {i + 1}", v, "m", low=0.0,
-                            low_inclusive=True)
-            self.npshr_points = npr
+            self.npshr_points = _non_negative_points(f"NPSHr of pump '{name}'", npshr, Q.size, "m")
         if power is not None:
-            pw = _as_points(f"power of pump '{name}'", power, Q.size, "W")
-            for i, v in enumerate(pw):
-                check_range(f"power of pump '{name}' point {i + 1}", v, "W", low=0.0,
-                            low_inclusive=True)
-            self.power_points = pw
+            self.power_points = _non_negative_points(f"power of pump '{name}'", power, Q.size, "W")
 
         self.degrees = self._degrees(degrees)
         self.fits: dict[str, CurveFit] = {"head": _fit("head", Q, H, self.degrees["head"])}

@@ -38,7 +38,8 @@ import traitlets
 
 from kit.errors import HeadlineError
 
-__all__ = ["Panel", "SYSTEMS", "error_html", "check_system", "KIT_ERRORS"]
+__all__ = ["Panel", "HtmlView", "SYSTEMS", "error_html", "check_system", "KIT_ERRORS",
+           "InvalidInput", "field_value", "panel_value", "stale_html", "section_heading"]
 
 #: Display systems a panel can show: value -> label.
 SYSTEMS = {"SI": "SI", "US": "US customary"}
@@ -66,6 +67,48 @@ def error_widget() -> widgets.HTML:
     w = widgets.HTML("")
     w.add_class("hl-error")
     return w
+
+
+def stale_html(message: str) -> str:
+    """An app's message while an input is bad: the error, and that the results shown are for
+    the last valid input."""
+    return (error_html(message) + '<div class="hl-note">Results below are '
+            "for the last valid input.</div>")
+
+
+def section_heading(text: str) -> widgets.HTML:
+    """A section heading of an app (CSS class ``hl-section``)."""
+    return widgets.HTML(f'<div class="hl-section">{html.escape(text)}</div>')
+
+
+class InvalidInput(Exception):
+    """Internal to the panels: an input shows its own message; the app keeps its last results.
+
+    Not a kit error (:mod:`kit.errors`): a panel raises and catches it; it never leaves one.
+    """
+
+
+def field_value(f, required: bool = True):
+    """The SI value of a :class:`~kit.panels.fields.QuantityField`.
+
+    Raises :class:`InvalidInput` with the field's own message while it is invalid, and
+    "'<field>' is required" while it is empty and ``required``; an empty optional field
+    gives None.
+    """
+    if not f.valid:
+        raise InvalidInput(f.error or f"'{f.field}' is required")
+    if required and f.value is None:
+        raise InvalidInput(f"'{f.field}' is required")
+    return f.value
+
+
+def panel_value(panel, message: str):
+    """``panel.value``; :class:`InvalidInput` with the panel's own error (else ``message``)
+    while it is None (an input of the panel is invalid)."""
+    value = panel.value
+    if value is None:
+        raise InvalidInput(panel.error or message)
+    return value
 
 
 class Panel(widgets.VBox):
@@ -135,3 +178,25 @@ class Panel(widgets.VBox):
 
     def _show(self, obj) -> None:  # pragma: no cover - abstract
         raise NotImplementedError
+
+
+class HtmlView(Panel):
+    """A read-only panel: its ``value`` a tuple of items (None gives ()), shown as one
+    :class:`ipywidgets.HTML` (``self.html``).
+
+    Subclasses set what they need before calling ``super().__init__`` and write
+    ``self.html.value`` in ``_render_system`` (called on every new value and system).
+    """
+
+    def __init__(self, items=(), system: str = "SI", **kwargs):
+        self.html = widgets.HTML("")
+        super().__init__([self.html], system=system, **kwargs)
+        self.value = tuple(items)
+
+    @traitlets.validate("value")
+    def _coerce(self, proposal):
+        v = proposal["value"]
+        return () if v is None else tuple(v)
+
+    def _show(self, obj) -> None:
+        self._render_system()

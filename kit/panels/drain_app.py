@@ -53,7 +53,18 @@ from kit.core import pipes as core_pipes
 from kit.core.drain import ORIFICE_CD, OrificeOutlet, PipedOutlet
 from kit.core.findings import cautions_for
 from kit.core.line import Segment
-from kit.panels.base import KIT_ERRORS, Panel, check_system, error_html, error_widget
+from kit.panels.base import (
+    KIT_ERRORS,
+    InvalidInput,
+    Panel,
+    check_system,
+    error_html,
+    error_widget,
+    field_value,
+    panel_value,
+    section_heading,
+    stale_html,
+)
 from kit.panels.charts import Chart, Series, to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
@@ -87,14 +98,6 @@ _STYLE = """<style>
 .hl-drain-app .hl-note{color:#555;font-style:italic}
 .hl-drain-app .hl-summary-table td{padding:1px 10px 1px 0}
 </style>"""
-
-
-def _section(text: str) -> widgets.HTML:
-    return widgets.HTML(f'<div class="hl-section">{html.escape(text)}</div>')
-
-
-class _Invalid(Exception):
-    """Internal: an input shows its own message; the app keeps the last results."""
 
 
 def _default_route(pipe) -> td.LineRoute:
@@ -251,31 +254,22 @@ class OutletPicker(Panel):
         self.receiver_level.layout.display = "" if self.discharge.value == "vessel" else "none"
 
     # -- widgets -> outlet
-    def _q(self, f: QuantityField):
-        if not f.valid or f.value is None:
-            raise _Invalid(f.error or f"'{f.field}' is required")
-        return f.value
-
     def build(self, size=None, label: str | None = None):
         """The outlet of the widgets, at another ``size`` if given: an orifice bore [m]; for a
         line a nominal size (str) of the pipe's standard and schedule or a bore [m]. A kit
-        error or ``_Invalid`` for bad input."""
+        error or ``InvalidInput`` for bad input."""
         if self.kind.value == "orifice":
-            d = self._q(self.diameter) if size is None else float(size)
+            d = field_value(self.diameter) if size is None else float(size)
             name = "orifice" if label is None else f"orifice ({label})"
-            return OrificeOutlet(d, self._q(self.cd), self._q(self.elevation), name)
-        pipe = self.pipe.value
-        if pipe is None:
-            raise _Invalid(self.pipe.error or "the line's pipe is not valid")
-        fits = self.fittings.value
-        if fits is None:
-            raise _Invalid(self.fittings.error or "a fitting row is not valid")
+            return OrificeOutlet(d, field_value(self.cd), field_value(self.elevation), name)
+        pipe = panel_value(self.pipe, "the line's pipe is not valid")
+        fits = panel_value(self.fittings, "a fitting row is not valid")
         if size is not None:
             pipe = td.resize_pipe(pipe, size)
-        z_in, fall = self._q(self.inlet), self._q(self.fall)
+        z_in, fall = field_value(self.inlet), field_value(self.fall)
         name = self.route.name if label is None else f"{self.route.name} ({label})"
-        line = self.route.build(pipe, fits, self._q(self.length), fall, z_in, name)
-        recv = self._q(self.receiver_level) if self.discharge.value == "vessel" else None
+        line = self.route.build(pipe, fits, field_value(self.length), fall, z_in, name)
+        recv = field_value(self.receiver_level) if self.discharge.value == "vessel" else None
         return PipedOutlet(line, z_in - fall, recv)
 
     def _recompute(self) -> None:
@@ -299,7 +293,7 @@ class OutletPicker(Panel):
                     "from the record, which uses the scenario's pipes.</div>")
         try:
             out = self.build()
-        except _Invalid as exc:
+        except InvalidInput as exc:
             self._set_valid(False, str(exc))
             self._store(None)
             return
@@ -458,15 +452,15 @@ class DrainApp(widgets.VBox):
             v.add_class("hl-drain-app")
             return v
 
-        self.tank_view = view(_section("Tank, levels, surface and vent"), self.tank)
-        self.liquid_view = view(_section("Liquid"), self.fluid, self.fluid_note)
-        self.outlet_view = view(_section("Outlet"), self.outlet)
-        self.whatif_view = view(_section("What-if: a second outlet size"), self.whatif_nominal,
+        self.tank_view = view(section_heading("Tank, levels, surface and vent"), self.tank)
+        self.liquid_view = view(section_heading("Liquid"), self.fluid, self.fluid_note)
+        self.outlet_view = view(section_heading("Outlet"), self.outlet)
+        self.whatif_view = view(section_heading("What-if: a second outlet size"), self.whatif_nominal,
                                 self.whatif_size, self.whatif_note)
-        self.results_view = view(_section("Drain-down"), self.message, self.summary,
+        self.results_view = view(section_heading("Drain-down"), self.message, self.summary,
                                  widgets.HTML("<b>Times to levels</b>"), self.times)
         self.charts_view = view(self.level_chart, self.flow_chart)
-        self.findings_view = view(_section("Findings"), self.findings, self.extra_cautions)
+        self.findings_view = view(section_heading("Findings"), self.findings, self.extra_cautions)
 
     def _wire(self) -> None:
         self.tank.observe(self._on_tank, names="value")
@@ -563,19 +557,13 @@ class DrainApp(widgets.VBox):
     def read_inputs(self) -> td.DrainInputs:
         """The panels' values as :class:`~kit.studies.tank_drainage.DrainInputs` (SI).
 
-        Raises ``_Invalid`` (an input shows its own message) or a kit error.
+        Raises ``InvalidInput`` (an input shows its own message) or a kit error.
         """
-        s = self.tank.value
-        if s is None:
-            raise _Invalid(self.tank.error or "the tank input is not valid")
-        sel = self.fluid.value
-        if sel is None:
-            raise _Invalid(self.fluid.error or "the liquid state is not valid")
-        outlet = self.outlet.value
-        if outlet is None:
-            raise _Invalid(self.outlet.error or "the outlet input is not valid")
+        s = panel_value(self.tank, "the tank input is not valid")
+        sel = panel_value(self.fluid, "the liquid state is not valid")
+        outlet = panel_value(self.outlet, "the outlet input is not valid")
         if not self.whatif_size.valid:
-            raise _Invalid(self.whatif_size.error)
+            raise InvalidInput(self.whatif_size.error)
         size = self._whatif_value()
         cmp, label = None, None
         if size is not None:
@@ -592,20 +580,13 @@ class DrainApp(widgets.VBox):
             inp = self.read_inputs()
             st = td.study(None, inp)
             res = td.results_of(st)
-        except _Invalid as exc:
-            self._stale(str(exc))
-            return
-        except KIT_ERRORS as exc:
-            self._stale(str(exc))
+        except (InvalidInput, *KIT_ERRORS) as exc:
+            self.message.value = stale_html(str(exc))
             return
         self.recomputes += 1
         self.message.value = ""
         self.study, self.results = st, res
         self._render()
-
-    def _stale(self, message: str) -> None:
-        self.message.value = (error_html(message) + '<div class="hl-note">Results below are '
-                              "for the last valid input.</div>")
 
     # ------------------------------------------------------------------ render
     def _render(self) -> None:

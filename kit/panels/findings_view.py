@@ -19,12 +19,9 @@ from __future__ import annotations
 import html
 import math
 
-import ipywidgets as widgets
-import traitlets
-
 from kit import units
 from kit.core.findings import Severity, cautions_for, worst
-from kit.panels.base import Panel
+from kit.panels.base import HtmlView
 from kit.textout import limit_text
 
 __all__ = ["FindingsView", "findings_html", "cautions_html", "finding_value_text", "UNIT_KINDS"]
@@ -92,7 +89,7 @@ def cautions_html(topics=()) -> str:
     return f'<div class="hl-cautions"><b>Cautions</b><ul>{items}</ul></div>'
 
 
-class FindingsView(Panel):
+class FindingsView(HtmlView):
     """A table of findings and the standing cautions for the given topics.
 
     Parameters
@@ -119,9 +116,7 @@ class FindingsView(Panel):
     def __init__(self, findings=(), topics=(), system: str = "SI"):
         self.topics = tuple(topics)
         cautions_for(*self.topics)  # unknown topic -> KeyError now, not at render time
-        self.html = widgets.HTML("")
-        super().__init__([self.html], system=system)
-        self.value = tuple(findings)
+        super().__init__(findings, system=system)
 
     def show(self, findings, topics=None) -> None:
         """Show ``findings`` and, if given, a new list of caution topics."""
@@ -131,14 +126,6 @@ class FindingsView(Panel):
             if tuple(findings) == self.value:
                 self._render_system()
         self.value = tuple(findings)
-
-    @traitlets.validate("value")
-    def _coerce(self, proposal):
-        v = proposal["value"]
-        return () if v is None else tuple(v)
-
-    def _show(self, obj) -> None:
-        self._render_system()
 
     def _render_system(self) -> None:
         fs = tuple(self.value or ())

@@ -55,7 +55,16 @@ from kit.core.criteria import DUTY_CLASSES, MARGINAL_FRACTION
 from kit.core.line import G
 from kit.core.roughness import CONDITIONS, materials
 from kit.core.sizing import Route
-from kit.panels.base import KIT_ERRORS, check_system, error_html
+from kit.panels.base import (
+    KIT_ERRORS,
+    InvalidInput,
+    check_system,
+    error_html,
+    field_value,
+    panel_value,
+    section_heading,
+    stale_html,
+)
 from kit.panels.charts import Chart, Series, to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
@@ -117,15 +126,6 @@ def _update(chart: Chart, series, **layout) -> None:
         chart.set_series(series)
         with fig.batch_update():
             fig.update_layout(**layout)
-
-
-class _Invalid(Exception):
-    """Internal: an input shows its own message; the app keeps the last results."""
-
-
-def _section(text: str) -> widgets.HTML:
-    w = widgets.HTML(f'<div class="hl-section">{html.escape(text)}</div>')
-    return w
 
 
 class _PointRow(widgets.HBox):
@@ -315,32 +315,32 @@ class LineSizingApp(widgets.VBox):
         (size dropdown, HGL/EGL chart, findings of that size), ``batch_view``.
         """
         style = widgets.HTML(_STYLE)
-        flows = widgets.VBox([_section("Flow"), self.flow_design, self.flow_min, self.flow_max])
-        duty = widgets.VBox([_section("Duty and criteria"), self.duty, self.v_min, self.v_max,
+        flows = widgets.VBox([section_heading("Flow"), self.flow_design, self.flow_min, self.flow_max])
+        duty = widgets.VBox([section_heading("Duty and criteria"), self.duty, self.v_min, self.v_max,
                              self.dp_max, self.criteria_note])
-        pipe = widgets.VBox([_section("Pipe"), self.standard, self.schedule, self.material,
+        pipe = widgets.VBox([section_heading("Pipe"), self.standard, self.schedule, self.material,
                              self.condition])
         left = widgets.VBox([flows, duty, pipe], layout=widgets.Layout(width="50%"))
-        right = widgets.VBox([_section("Liquid"), self.fluid], layout=widgets.Layout(width="50%"))
+        right = widgets.VBox([section_heading("Liquid"), self.fluid], layout=widgets.Layout(width="50%"))
         self.inputs_view = widgets.VBox([style, widgets.HBox([left, right])])
         self.inputs_view.add_class("hl-line-sizing")
         self.route_view = widgets.VBox([
-            _section("Route"), self.length, self.start_elevation, self.start_name,
+            section_heading("Route"), self.length, self.start_elevation, self.start_name,
             widgets.HTML("<b>Elevation profile</b> (named points in order of chainage; the "
                          "last is the end of the route and follows the length)"),
             self.points_box, self.add_point, self.end_pressure, self.vapour_margin,
             self.fittings])
         self.route_view.add_class("hl-route")
         self.route_view.add_class("hl-line-sizing")
-        self.candidates_view = widgets.VBox([style, _section("Candidate sizes"), self.message,
+        self.candidates_view = widgets.VBox([style, section_heading("Candidate sizes"), self.message,
                                              self.table, self.reason])
         self.candidates_view.add_class("hl-line-sizing")
         self.charts_view = widgets.HBox([self.v_chart, self.dp_chart])
-        self.profile_view = widgets.VBox([_section("Profile of one size"), self.size,
+        self.profile_view = widgets.VBox([section_heading("Profile of one size"), self.size,
                                           self.profile_chart, self.size_heading, self.findings])
         self.profile_view.add_class("hl-line-sizing")
         self.batch_view = widgets.VBox([
-            style, _section("Line list (batch)"),
+            style, section_heading("Line list (batch)"),
             widgets.HTML("CSV with a header row: " + html.escape(", ".join(ls.LINE_LIST_COLUMNS))
                          + ". Every quantity with its unit; <i>liquid</i> a catalogue key or "
                          "<i>scenario</i>; rows use the duty classes' values (the one chosen "
@@ -442,25 +442,16 @@ class LineSizingApp(widgets.VBox):
         self.schedule.value = keep if keep in keys else ("40" if "40" in keys else keys[0])
 
     # ------------------------------------------------------------------ inputs
-    def _q(self, f: QuantityField) -> float:
-        if not f.valid or f.value is None:
-            raise _Invalid(f.error or f"'{f.field}' is required")
-        return f.value
-
     def read_inputs(self) -> ls.SizingInputs:
         """The panels' values as :class:`~kit.studies.line_sizing.SizingInputs` (SI).
 
-        Raises ``_Invalid`` (an input shows its own message) or a kit error.
+        Raises ``InvalidInput`` (an input shows its own message) or a kit error.
         """
-        sel = self.fluid.value
-        if sel is None:
-            raise _Invalid(self.fluid.error or "the liquid state is not valid")
-        fits = self.fittings.value
-        if fits is None:
-            raise _Invalid(self.fittings.error or "a fitting row is not valid")
-        Qd, Qmin, Qmax = self._q(self.flow_design), self._q(self.flow_min), self._q(self.flow_max)
+        sel = panel_value(self.fluid, "the liquid state is not valid")
+        fits = panel_value(self.fittings, "a fitting row is not valid")
+        Qd, Qmin, Qmax = field_value(self.flow_design), field_value(self.flow_min), field_value(self.flow_max)
         base = DUTY_CLASSES[self.duty.value]
-        v_min, v_max, dp_max = self._q(self.v_min), self._q(self.v_max), self._q(self.dp_max)
+        v_min, v_max, dp_max = field_value(self.v_min), field_value(self.v_max), field_value(self.dp_max)
         duty = base
         given = self._scenario_duty
         if given.key == base.key and (v_min, v_max, dp_max) == (given.v_min, given.v_max,
@@ -470,23 +461,23 @@ class LineSizingApp(widgets.VBox):
             duty = replace(base, v_min=v_min, v_max=v_max, dp_max=dp_max,
                            source="edited in the notebook; defaults: " + DUTY_CLASSES[
                                base.key].source)
-        L = self._q(self.length)
+        L = field_value(self.length)
         pts = []
         for i, row in enumerate(self.points):
-            x = L if i == len(self.points) - 1 else self._q(row.chainage)
-            pts.append((row.name.value.strip() or f"point {i + 1}", x, self._q(row.elevation)))
-        route = Route(L, tuple(pts), fits, self._q(self.start_elevation),
+            x = L if i == len(self.points) - 1 else field_value(row.chainage)
+            pts.append((row.name.value.strip() or f"point {i + 1}", x, field_value(row.elevation)))
+        route = Route(L, tuple(pts), fits, field_value(self.start_elevation),
                       self.start_name.value.strip() or "start")
         pipes = ls.candidate_pipes(self.standard.value, self.schedule.value, self.material.value,
                                    self.condition.value, self.fixed_sizes)
         if not pipes:
-            raise _Invalid(f"no size of {self.standard.value} has schedule {self.schedule.value}")
+            raise InvalidInput(f"no size of {self.standard.value} has schedule {self.schedule.value}")
         if self.fixed_sizes is None:
             pipes = ls.sizes_in_reach(pipes, Qd, duty)
         return ls.SizingInputs(route, sel.liquid, sel.state, duty, Qd, Qmin, Qmax,
                                self.standard.value, self.schedule.value, self.material.value,
-                               self.condition.value, pipes, self._q(self.end_pressure),
-                               self.p_baro, self._q(self.vapour_margin), self.erosional_C)
+                               self.condition.value, pipes, field_value(self.end_pressure),
+                               self.p_baro, field_value(self.vapour_margin), self.erosional_C)
 
     @staticmethod
     def _key(inp: ls.SizingInputs) -> tuple:
@@ -508,20 +499,13 @@ class LineSizingApp(widgets.VBox):
                 if len(self._cache) > 64:
                     self._cache.clear()
                 self._cache[key] = res
-        except _Invalid as exc:
-            self._stale(str(exc))
-            return
-        except KIT_ERRORS as exc:
-            self._stale(str(exc))
+        except (InvalidInput, *KIT_ERRORS) as exc:
+            self.message.value = stale_html(str(exc))
             return
         self.message.value = ""
         self.study = ls.SizingStudy(inp, res)
         self.findings.topics = ls.caution_topics(inp)
         self._render()
-
-    def _stale(self, message: str) -> None:
-        self.message.value = (error_html(message) + '<div class="hl-note">Results below are '
-                              "for the last valid input.</div>")
 
     def _render(self) -> None:
         st = self.study

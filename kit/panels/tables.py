@@ -19,11 +19,8 @@ import html
 import math
 from dataclasses import dataclass
 
-import ipywidgets as widgets
-import traitlets
-
 from kit import units
-from kit.panels.base import Panel
+from kit.panels.base import HtmlView
 
 __all__ = ["Column", "results_table_html", "reported_table_html", "ResultsTable", "unit_label"]
 
@@ -143,7 +140,7 @@ def reported_table_html(values, system: str = "SI", css_class: str = "hl-results
             f'</tr></thead><tbody>{"".join(body)}</tbody></table>')
 
 
-class ResultsTable(Panel):
+class ResultsTable(HtmlView):
     """A widget showing rows of SI values; ``.value`` is the tuple of row dicts.
 
     Parameters
@@ -165,17 +162,7 @@ class ResultsTable(Panel):
         self.columns = tuple(columns)
         self.p_baro = p_baro
         self.caption = caption
-        self.html = widgets.HTML("")
-        super().__init__([self.html], system=system)
-        self.value = tuple(rows)
-
-    @traitlets.validate("value")
-    def _coerce(self, proposal):
-        v = proposal["value"]
-        return () if v is None else tuple(v)
-
-    def _show(self, obj) -> None:
-        self._render_system()
+        super().__init__(rows, system=system)
 
     def _render_system(self) -> None:
         self.html.value = results_table_html(self.value or (), self.columns, self.system,

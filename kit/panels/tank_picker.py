@@ -47,7 +47,7 @@ from kit.core import tank as core_tank
 from kit.core.drain import Vent
 from kit.core.tank import HEAD_KINDS, TORISPHERICAL_STANDARDS, Head, Tank
 from kit.errors import InputError, check_range
-from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
+from kit.panels.base import KIT_ERRORS, InvalidInput, Panel, error_html, error_widget, field_value
 from kit.panels.fields import QuantityField, text_for
 
 __all__ = ["TankPicker", "TankSetup", "OutletMark", "SHAPE_LABELS", "SURFACE_LABELS",
@@ -398,7 +398,7 @@ class _HeadRow(widgets.HBox):
             return Head("flat")
         for fld in (self.depth, self.ratio):
             if not fld.valid:
-                raise _Invalid(fld.error)
+                raise InvalidInput(fld.error)
         return Head(kind, self.depth.value, self.ratio.value)
 
     def show(self, head: Head) -> None:
@@ -420,10 +420,6 @@ class _HeadRow(widgets.HBox):
     def set_system(self, system: str) -> None:
         self.depth.set_system(system)
         self.ratio.set_system(system)
-
-
-class _Invalid(Exception):
-    """Internal: a field shows its own message."""
 
 
 # --------------------------------------------------------------------------------- panel
@@ -596,30 +592,23 @@ class TankPicker(Panel):
         self.surface_pressure.layout.display = "none" if self.surface.value == "vented" else ""
 
     # -- widgets -> TankSetup
-    def _q(self, f: QuantityField, required: bool = True):
-        if not f.valid:
-            raise _Invalid(f.error)
-        if required and f.value is None:
-            raise _Invalid(f"'{f.field}' is required")
-        return f.value
-
     def _read_tank(self) -> Tank:
         shape, name = self.shape.value, self.name.value.strip() or "tank"
         if shape == "strapping_table":
             levels, volumes = parse_table(self.table.value)
             return core_tank.strapping_table(levels, volumes, name=name)
-        D = self._q(self.diameter)
+        D = field_value(self.diameter)
         if shape == "sphere":
             return core_tank.sphere(D, name=name)
-        L = self._q(self.length)
+        L = field_value(self.length)
         if shape == "horizontal_cylinder":
             return core_tank.horizontal_cylinder(D, L, self.bottom.read(), name=name)
         return core_tank.vertical_cylinder(D, L, self.bottom.read(), self.top.read(), name=name)
 
     def _read(self) -> TankSetup:
         tank = self._read_tank()
-        start = self._q(self.start)
-        target = self._q(self.target)
+        start = field_value(self.start)
+        target = field_value(self.target)
         check_range(f"start level in '{tank.name}'", start, "m", low=tank.h_min,
                     high=tank.h_max, low_inclusive=True)
         check_range("target level", target, "m", low=tank.h_min, high=start,
@@ -629,23 +618,23 @@ class TankPicker(Panel):
             check_range(f"level of interest '{label}'", z, "m", low=target, high=start,
                         low_inclusive=True)
         surface = self.surface.value
-        p_s = None if surface == "vented" else self._q(self.surface_pressure)
+        p_s = None if surface == "vented" else field_value(self.surface_pressure)
         if surface == "padded":
             check_range("padded surface pressure", p_s, "Pa", low=self.p_baro, high=1e8)
         elif surface == "vacuum":
             check_range("vacuum surface pressure", p_s, "Pa", low=0.0, high=self.p_baro,
                         high_inclusive=False)
-        d_vent = self._q(self.vent_diameter, required=False)
+        d_vent = field_value(self.vent_diameter, required=False)
         vent = None
         if d_vent is not None:
-            vent = Vent(d_vent, self._q(self.vent_cd), self._q(self.allowable_vacuum))
+            vent = Vent(d_vent, field_value(self.vent_cd), field_value(self.allowable_vacuum))
         return TankSetup(tank, start, target, levels, surface, p_s, vent)
 
     def _recompute(self) -> None:
         self.message.value = ""
         try:
             setup = self._read()
-        except _Invalid as exc:
+        except InvalidInput as exc:
             self._set_valid(False, str(exc))
             self._store(None)
             self._render()
@@ -717,7 +706,7 @@ class TankPicker(Panel):
         if s is None:
             try:
                 tank = self._read_tank()
-            except (_Invalid, *KIT_ERRORS):
+            except (InvalidInput, *KIT_ERRORS):
                 self.sketch.value = ('<div class="hl-muted">no sketch: correct the input '
                                      "</div>")
                 self.info.value = ""

@@ -16,6 +16,9 @@ Helpers
   and idle, runs all cells from the Run menu, waits until no cell is busy, and asserts that no
   output has the stderr or error mime type.
 - :func:`screenshot` saves a PNG into ``artifacts/`` at the repo root.
+- :class:`Dom` (fixture ``dom``): reading and waiting on the page's DOM: an element's text,
+  a chart's trace paths, waits until they change, a dropdown choice by its label, the time
+  of one change, and the latency summary the tests write to ``artifacts/``.
 
 Browser tests carry ``@pytest.mark.browser`` and are skipped, with the reason, when
 ``/usr/bin/chromium`` is missing. See ``/work/shared/JUPYTER-NOTES.md`` for why each step is
@@ -30,6 +33,7 @@ import secrets
 import shutil
 import signal
 import socket
+import statistics
 import subprocess
 import sys
 import time
@@ -48,7 +52,8 @@ CHROMIUM_ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic"
                  "--disable-component-update", "--disable-sync"]
 NO_CHROMIUM = f"{CHROMIUM} is missing (install it with: apt-get install -y chromium)"
 
-__all__ = ["Lab", "open_and_run", "screenshot", "write_notebook", "kernel_idle_and_connected"]
+__all__ = ["Lab", "Dom", "open_and_run", "screenshot", "write_notebook",
+           "kernel_idle_and_connected"]
 
 
 def pytest_collection_modifyitems(config, items):
@@ -264,6 +269,85 @@ def screenshot(page, name: str) -> Path:
     path = ARTIFACTS / f"{name}.png"
     page.screenshot(path=str(path), full_page=True)
     return path
+
+
+class Dom:
+    """Reading and waiting on the DOM of a page (every method takes the Playwright page)."""
+
+    #: Every trace path of the charts under a selector, joined: changes when a drawn line does.
+    PATHS = """(sel) => [...document.querySelectorAll(sel + ' .js-plotly-plot .scatterlayer path.js-line')]
+  .map(p => p.getAttribute('d')).join('|')"""
+    #: ``[sel, old]`` -> the browser clock once the joined paths differ from ``old``.
+    PATHS_CHANGED = """([sel, old]) => {
+  const now = [...document.querySelectorAll(sel + ' .js-plotly-plot .scatterlayer path.js-line')]
+    .map(p => p.getAttribute('d')).join('|');
+  if (now && now !== old) return performance.now();
+  return false;
+}"""
+    #: ``[sel, old]`` -> true once the element's textContent differs from ``old``.
+    TEXT_CHANGED = """([sel, old]) => {
+  const el = document.querySelector(sel);
+  return el && el.textContent !== old;
+}"""
+
+    @staticmethod
+    def text(page, sel: str) -> str:
+        """textContent (JupyterLab skips rendering off-screen cells, so innerText may be '')."""
+        return page.evaluate("(sel) => { const e = document.querySelector(sel); "
+                             "return e ? e.textContent : ''; }", sel)
+
+    @classmethod
+    def paths(cls, page, sel: str) -> str:
+        """The joined trace paths of the charts under ``sel``."""
+        return page.evaluate(cls.PATHS, sel)
+
+    @staticmethod
+    def wait_charts_drawn(page, *sels: str) -> None:
+        """Wait until each chart under ``sels`` has its plot and a drawn trace."""
+        for sel in sels:
+            page.wait_for_selector(f"{sel} .js-plotly-plot .main-svg")
+            page.wait_for_selector(f"{sel} .scatterlayer path.js-line")
+
+    @classmethod
+    def wait_paths_changed(cls, page, sel: str, old: str, **kw):
+        """Wait (each animation frame) until the trace paths under ``sel`` differ from ``old``."""
+        return page.wait_for_function(cls.PATHS_CHANGED, arg=[sel, old], polling="raf", **kw)
+
+    @classmethod
+    def wait_text_changed(cls, page, sel: str, old: str):
+        """Wait (each animation frame) until the text of ``sel`` differs from ``old``."""
+        return page.wait_for_function(cls.TEXT_CHANGED, arg=[sel, old], polling="raf")
+
+    @staticmethod
+    def select_by_label(select, label_start: str) -> None:
+        """Choose the first option of the ``select`` locator whose label starts so
+        (non-breaking spaces read as spaces)."""
+        labels = select.evaluate(
+            "(s) => [...s.options].map(o => o.textContent.replace(/\\u00a0/g, ' '))")
+        select.select_option(index=[i for i, lbl in enumerate(labels)
+                                    if lbl.startswith(label_start)][0])
+
+    @staticmethod
+    def timed_change(page, act, changed: str, arg) -> float:
+        """Milliseconds on the browser clock from just before ``act()`` to the animation frame
+        in which the function ``changed`` (given ``arg``) returns the clock."""
+        t0 = page.evaluate("performance.now()")
+        act()
+        t1 = page.wait_for_function(changed, arg=arg, polling="raf", timeout=30_000).json_value()
+        return t1 - t0
+
+    @staticmethod
+    def latency_summary(samples, **extra) -> dict:
+        """Median, min, max and the samples [ms], rounded to 0.1 ms, then ``extra``."""
+        return {"median_ms": round(statistics.median(samples), 1),
+                "min_ms": round(min(samples), 1), "max_ms": round(max(samples), 1),
+                "samples_ms": [round(s, 1) for s in samples], **extra}
+
+
+@pytest.fixture
+def dom() -> type[Dom]:
+    """:class:`Dom`: text, trace paths, waits and timings on a page's DOM."""
+    return Dom
 
 
 @pytest.fixture(name="open_and_run")

@@ -41,7 +41,7 @@ _CHANGED = """([sel, old]) => {
 
 
 def test_field_change_redraws_chart(lab, page, open_and_run, screenshot, write_notebook,
-                                    artifacts):
+                                    artifacts, dom):
     write_notebook(NOTEBOOK, CELLS)
     timings = open_and_run(page, NOTEBOOK)
     page.wait_for_selector(".hl-chart .js-plotly-plot .main-svg")
@@ -51,11 +51,7 @@ def test_field_change_redraws_chart(lab, page, open_and_run, screenshot, write_n
     for i in range(11):
         old = page.get_attribute(_PATH, "d")
         box.fill(f"{70 + 7 * i} m3/h")
-        t0 = page.evaluate("performance.now()")
-        box.press("Enter")
-        t1 = page.wait_for_function(_CHANGED, arg=[_PATH, old], polling="raf",
-                                    timeout=30_000).json_value()
-        samples.append(t1 - t0)
+        samples.append(dom.timed_change(page, lambda: box.press("Enter"), _CHANGED, [_PATH, old]))
     screenshot(page, "smoke_panels")
     echo = page.locator(".hl-quantity .hl-echo").first.inner_text()
     assert echo == "= 140.0 m³/h"  # the last value typed, re-formatted by the kernel
@@ -67,10 +63,9 @@ def test_field_change_redraws_chart(lab, page, open_and_run, screenshot, write_n
         "() => document.querySelector('.hl-quantity .hl-error').textContent.includes('needs a')")
     assert box.input_value() == "140 kg"
     median = statistics.median(samples)
-    result = {"median_ms": round(median, 1), "min_ms": round(min(samples), 1),
-              "max_ms": round(max(samples), 1), "samples_ms": [round(s, 1) for s in samples],
-              "lab_start_s": round(lab.start_seconds, 2), "open_s": round(timings["open"], 2),
-              "run_all_s": round(timings["run"], 2)}
+    result = dom.latency_summary(samples, lab_start_s=round(lab.start_seconds, 2),
+                                 open_s=round(timings["open"], 2),
+                                 run_all_s=round(timings["run"], 2))
     (artifacts / "latency.json").write_text(json.dumps(result, indent=2), encoding="utf-8")
     print(f"\nwidget change -> redrawn chart: median {median:.1f} ms over {len(samples)} changes "
           f"(min {min(samples):.1f}, max {max(samples):.1f}); Lab start {lab.start_seconds:.2f} s, "

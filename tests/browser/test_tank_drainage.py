@@ -15,18 +15,6 @@ pytestmark = pytest.mark.browser
 
 NOTEBOOK = "notebooks/tank_drainage.ipynb"
 
-_PATHS = """(sel) => [...document.querySelectorAll(sel + ' .js-plotly-plot .scatterlayer path.js-line')]
-  .map(p => p.getAttribute('d')).join('|')"""
-_PATHS_CHANGED = """([sel, old]) => {
-  const now = [...document.querySelectorAll(sel + ' .js-plotly-plot .scatterlayer path.js-line')]
-    .map(p => p.getAttribute('d')).join('|');
-  if (now && now !== old) return performance.now();
-  return false;
-}"""
-_TEXT_CHANGED = """([sel, old]) => {
-  const el = document.querySelector(sel);
-  return el && el.textContent !== old;
-}"""
 _ATTR_CHANGED = """([sel, attr, old]) => {
   const el = document.querySelector(sel);
   return el && el.getAttribute(attr) !== old;
@@ -40,16 +28,8 @@ NOMINAL = ".hl-outlet-picker .hl-pipe-picker select"     # standard, nominal, sc
 LIQUID = ".hl-tank-sketch .hl-liquid"
 
 
-def _text(page, sel):
-    """textContent (JupyterLab skips rendering off-screen cells, so innerText may be '')."""
-    return page.evaluate("(sel) => { const e = document.querySelector(sel); "
-                         "return e ? e.textContent : ''; }", sel)
-
-
-def _pick_nominal(page, label_start):
-    sel = page.locator(NOMINAL).nth(1)
-    labels = sel.evaluate("(s) => [...s.options].map(o => o.textContent.replace(/\\u00a0/g, ' '))")
-    sel.select_option(index=[i for i, lbl in enumerate(labels) if lbl.startswith(label_start)][0])
+def _pick_nominal(page, dom, label_start):
+    dom.select_by_label(page.locator(NOMINAL).nth(1), label_start)
 
 
 def _target_minutes(page) -> float:
@@ -59,53 +39,50 @@ def _target_minutes(page) -> float:
     return float(target[3])       # 'time, as given [min]'
 
 
-def test_tank_drainage_notebook_in_the_browser(lab, page, open_and_run, screenshot, artifacts):
+def test_tank_drainage_notebook_in_the_browser(lab, page, open_and_run, screenshot, artifacts,
+                                               dom):
     timings = open_and_run(page, NOTEBOOK, timeout=240)
-    for sel in (LEVEL, FLOW):
-        page.wait_for_selector(f"{sel} .js-plotly-plot .main-svg")
-        page.wait_for_selector(f"{sel} .scatterlayer path.js-line")
+    dom.wait_charts_drawn(page, LEVEL, FLOW)
     page.wait_for_selector(TIMES)
     page.wait_for_selector(".hl-tank-sketch svg .hl-outlet")
-    assert "NPS 3 dump line" in _text(page, SUMMARY)
+    assert "NPS 3 dump line" in dom.text(page, SUMMARY)
     t_start = _target_minutes(page)
     assert t_start == pytest.approx(9.71, abs=0.01)      # the summary printed by nbval
     screenshot(page, "tank_drainage_start")
 
     # 1) the outlet size: NPS 2 -> NPS 1-1/2; the table and the level chart change
-    old_table = _text(page, TIMES)
-    old_level = page.evaluate(_PATHS, LEVEL)
-    _pick_nominal(page, "NPS 1-1/2 ")
-    page.wait_for_function(_TEXT_CHANGED, arg=[TIMES, old_table], polling="raf")
-    page.wait_for_function(_PATHS_CHANGED, arg=[LEVEL, old_level], polling="raf")
+    old_table = dom.text(page, TIMES)
+    old_level = dom.paths(page, LEVEL)
+    _pick_nominal(page, dom, "NPS 1-1/2 ")
+    dom.wait_text_changed(page, TIMES, old_table)
+    dom.wait_paths_changed(page, LEVEL, old_level)
     t_small = _target_minutes(page)
     assert t_small > 1.5 * t_start, (t_start, t_small)
-    assert "1-1/2" in _text(page, ".hl-outlet-picker .hl-pipe-info")
-    assert _text(page, ".hl-app-message") == ""
+    assert "1-1/2" in dom.text(page, ".hl-outlet-picker .hl-pipe-info")
+    assert dom.text(page, ".hl-app-message") == ""
     page.locator(TIMES).scroll_into_view_if_needed()
     screenshot(page, "tank_drainage_smaller_line")
 
     # 2) round trip over 9 changes: size chosen -> redrawn level chart
     samples = []
     for i in range(9):                    # ends on NPS 2, the scenario size
-        old = page.evaluate(_PATHS, LEVEL)
-        t0 = page.evaluate("performance.now()")
-        _pick_nominal(page, "NPS 2 " if i % 2 == 0 else "NPS 1-1/2 ")
-        t1 = page.wait_for_function(_PATHS_CHANGED, arg=[LEVEL, old], polling="raf",
-                                    timeout=30_000).json_value()
-        samples.append(t1 - t0)
+        old = dom.paths(page, LEVEL)
+        label = "NPS 2 " if i % 2 == 0 else "NPS 1-1/2 "
+        samples.append(dom.timed_change(page, lambda label=label: _pick_nominal(page, dom, label),
+                                        dom.PATHS_CHANGED, [LEVEL, old]))
     page.wait_for_function(f"() => document.querySelector('{TIMES}').textContent"
                            f".includes('{t_start:.2f}')")
 
     # 3) the start level: the sketch's liquid and the times change
     old_y = page.get_attribute(LIQUID, "y")
-    old_table = _text(page, TIMES)
+    old_table = dom.text(page, TIMES)
     box = page.locator(".hl-level-start input").first
     box.fill("1.8 m")
     box.press("Enter")
     page.wait_for_function(_ATTR_CHANGED, arg=[LIQUID, "y", old_y], polling="raf")
-    page.wait_for_function(_TEXT_CHANGED, arg=[TIMES, old_table], polling="raf")
+    dom.wait_text_changed(page, TIMES, old_table)
     assert _target_minutes(page) < t_start
-    assert "start 1.80 m" in _text(page, ".hl-tank-sketch")
+    assert "start 1.80 m" in dom.text(page, ".hl-tank-sketch")
 
     # 4) bad text keeps the text and shows the kit's message beside the field
     box.fill("1.8 kg")
@@ -127,9 +104,8 @@ def test_tank_drainage_notebook_in_the_browser(lab, page, open_and_run, screensh
     screenshot(page, "tank_drainage_after")
 
     median = statistics.median(samples)
-    result = {"median_ms": round(median, 1), "min_ms": round(min(samples), 1),
-              "max_ms": round(max(samples), 1), "samples_ms": [round(s, 1) for s in samples],
-              "open_s": round(timings["open"], 2), "run_all_s": round(timings["run"], 2)}
+    result = dom.latency_summary(samples, open_s=round(timings["open"], 2),
+                                 run_all_s=round(timings["run"], 2))
     (artifacts / "latency_tank_drainage.json").write_text(json.dumps(result, indent=2),
                                                           encoding="utf-8")
     print(f"\noutlet size -> redrawn level chart: median {median:.1f} ms over {len(samples)} "

@@ -7,6 +7,8 @@ from types import SimpleNamespace as NS
 
 import numpy as np
 import pytest
+from docsig import documented_params, signature_params
+from raising import raises_exactly
 from scipy.integrate import quad
 from scipy.optimize import brentq
 
@@ -27,23 +29,6 @@ from kit.errors import InputError, OutOfRangeError, UnknownChoiceError
 g = 9.80665                                              # standard gravity (CGPM 1901)
 WATER = NS(T=293.15, rho=998.2, mu=1.002e-3, pv=2339.0)  # water at 20 °C (from memory)
 OIL = NS(T=293.15, rho=900.0, mu=0.3, pv=None)           # invented heavy oil, 300 cP
-
-
-def raises_exactly(cls, match):
-    """pytest.raises that also pins the exact class (not a subclass)."""
-
-    class _Ctx:
-        def __enter__(self):
-            self.cm = pytest.raises(cls, match=match)
-            self.info = self.cm.__enter__()
-            return self.info
-
-        def __exit__(self, *exc):
-            out = self.cm.__exit__(*exc)
-            assert type(self.info.value) is cls, type(self.info.value)
-            return out
-
-    return _Ctx()
 
 
 def finding(result, quantity):
@@ -454,13 +439,9 @@ def test_flammable_liquid_adds_its_caution():
 @pytest.mark.parametrize("func", [drain, piped_flow, OrificeOutlet, PipedOutlet, Vent],
                          ids=lambda f: f.__name__)
 def test_documented_parameters_match_signature(func):
-    import inspect
-
-    doc = inspect.getdoc(func)
-    for name in inspect.signature(func).parameters:
-        if name in ("self", "name"):
-            continue
-        assert f"\n{name} :" in doc or f"\n{name}," in doc, name
+    documented = documented_params(func) or []
+    for name in signature_params(func, skip=("self", "name")):
+        assert name in documented, name
 
 
 def test_core_modules_do_not_load_pint_or_widgets():

@@ -7,6 +7,7 @@ import math
 import fluids.fittings as ff
 import numpy as np
 import pytest
+from raising import raises_exactly
 
 from kit.core.fittings import (
     DARBY_NAMES,
@@ -23,23 +24,6 @@ INCH = 0.0254
 D4 = 0.10226        # NPS 4 Sch 40 bore [m] (ASME B36.10M 4.026 in, from memory)
 EPS = 4.5e-5        # commercial steel [m] (Moody 1944, from memory)
 RE = np.array([2.0e3, 1.0e4, 5.0e4, 1.0e5, 1.0e6, 1.0e7])
-
-
-def raises_exactly(cls, match):
-    """pytest.raises that also pins the exact class (not a subclass)."""
-
-    class _Ctx:
-        def __enter__(self):
-            self._cm = pytest.raises(cls, match=match)
-            self.info = self._cm.__enter__()
-            return self.info
-
-        def __exit__(self, *exc):
-            out = self._cm.__exit__(*exc)
-            assert type(self.info.value) is cls, type(self.info.value)
-            return out
-
-    return _Ctx()
 
 
 # ------------------------------------------------------------------ 2-K and 3-K

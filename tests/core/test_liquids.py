@@ -7,12 +7,12 @@ Each reference check names its source beside it. CoolProp's phase blindness (wat
 import inspect
 import json
 import math
-import re
 import subprocess
 import sys
 from pathlib import Path
 
 import pytest
+from docsig import documented_params
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from iapws import IAPWS97
@@ -462,15 +462,9 @@ def test_import_does_not_load_coolprop_or_ui_libraries():
     assert out.stdout.strip() == "[]"
 
 
-def _doc_params(obj) -> list[str]:
-    doc = inspect.getdoc(obj) or ""
-    m = re.search(r"Parameters\n-+\n(.*?)(\n\n[A-Z][a-z]+\n-+|\Z)", doc, re.S)
-    return re.findall(r"^(\w+) :", m.group(1), re.M) if m else []
-
-
 @pytest.mark.parametrize("obj", [water_saturation_pressure, make_liquid, Liquid, Liquid.state,
                                  UserLiquid, UserLiquid.state, LiquidState.require_pv])
 def test_documented_parameters_match_signature(obj):
     # Same idea as fluids' own docstring test: each parameter documented, in order.
     names = [p for p in inspect.signature(obj).parameters if p != "self"]
-    assert _doc_params(obj) == names
+    assert (documented_params(obj) or []) == names

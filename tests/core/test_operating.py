@@ -12,6 +12,8 @@ import math
 import fluids
 import numpy as np
 import pytest
+from bisection import bisect
+from docsig import documented_params, signature_params, unit_missing
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -52,19 +54,6 @@ def make_pump(name="P-1", a=A, b=B, q_pts=Q_PTS, **kw):
                 npshr=2.0 + 2000.0 * q_pts ** 2, name=name)
     args.update(kw)
     return PumpCurve(q_pts, a - b * q_pts ** 2, **args)
-
-
-def bisect(fun, lo, hi, n=200):
-    """Plain bisection, written for the tests (independent of the code under test)."""
-    flo = fun(lo)
-    for _ in range(n):
-        mid = 0.5 * (lo + hi)
-        fm = fun(mid)
-        if (fm > 0) == (flo > 0):
-            lo, flo = mid, fm
-        else:
-            hi = mid
-    return 0.5 * (lo + hi)
 
 
 # ---------------------------------------------------------------- operating point
@@ -317,25 +306,10 @@ def test_motor_efficiency_values_and_the_8_pole_trap():
 
 
 # ---------------------------------------------------------------- documentation matches signatures
-def _documented_params(obj):
-    import inspect
-    import re
-    doc = inspect.getdoc(obj) or ""
-    m = re.search(r"Parameters\n-+\n(.*?)(?:\n\n[A-Z][a-z]+\n-+\n|\Z)", doc, re.S)
-    if m is None:
-        return None
-    blocks = re.findall(r"^(\w+) : .*\n((?:    .*(?:\n|$))+)", m.group(1) + "\n", re.M)
-    for name, text in blocks:
-        assert re.search(r"\[[^\]]*\]$", text.strip()), f"{obj.__name__}: '{name}' has no [unit]"
-    return [name for name, _ in blocks]
-
-
 def test_documented_parameters_match_signatures():
     # the documented Parameters of every public callable that has a Parameters section must
     # name exactly the signature's public parameters, each with a unit in brackets
     # (docstring convention of fluids; common practice, no source)
-    import inspect
-
     import kit.core.motors as mo
     import kit.core.operating as op
     import kit.core.pump as pu
@@ -345,12 +319,10 @@ def test_documented_parameters_match_signatures():
             obj = getattr(mod, name)
             if not callable(obj):
                 continue
-            documented = _documented_params(obj)
+            documented = documented_params(obj)
             if documented is None:
                 continue
-            target = obj.__init__ if inspect.isclass(obj) else obj
-            params = [p for p in inspect.signature(target).parameters
-                      if p != "self" and not p.startswith("_")]
-            assert documented == params, name
+            assert not unit_missing(obj), f"{name}: {unit_missing(obj)} have no [unit]"
+            assert documented == signature_params(obj), name
             checked += 1
     assert checked >= 6

@@ -6,6 +6,7 @@ import dataclasses
 import math
 
 import pytest
+from raising import raises_exactly
 
 from kit.core.pipes import (
     NPS_TO_DN,
@@ -24,23 +25,6 @@ from kit.errors import InputError, OutOfRangeError, UnknownChoiceError
 
 INCH = 0.0254
 FOOT = 0.3048
-
-
-def raises_exactly(cls, match):
-    """pytest.raises that also pins the exact class (not a subclass)."""
-
-    class _Ctx:
-        def __enter__(self):
-            self._cm = pytest.raises(cls, match=match)
-            self.info = self._cm.__enter__()
-            return self.info
-
-        def __exit__(self, *exc):
-            out = self._cm.__exit__(*exc)
-            assert type(self.info.value) is cls, type(self.info.value)
-            return out
-
-    return _Ctx()
 
 
 # ------------------------------------------------------------------ dimensions

@@ -6,6 +6,7 @@ import math
 
 import numpy as np
 import pytest
+from raising import raises_exactly
 from scipy.integrate import quad
 
 from kit.core.tank import (
@@ -19,23 +20,6 @@ from kit.core.tank import (
 from kit.errors import InputError, OutOfRangeError, UnknownChoiceError
 
 pi = math.pi
-
-
-def raises_exactly(cls, match):
-    """pytest.raises that also pins the exact class (not a subclass)."""
-
-    class _Ctx:
-        def __enter__(self):
-            self.cm = pytest.raises(cls, match=match)
-            self.info = self.cm.__enter__()
-            return self.info
-
-        def __exit__(self, *exc):
-            out = self.cm.__exit__(*exc)
-            assert type(self.info.value) is cls, type(self.info.value)
-            return out
-
-    return _Ctx()
 
 
 # ---------- independent geometry written here --------------------------------------------

@@ -15,6 +15,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from bisection import bisect
 from iapws import IAPWS97
 from scipy.optimize import brentq
 
@@ -99,18 +100,6 @@ def levels(doc, static):
     if static == "max":
         return z["level_low"], zd["level_high"]
     return z["level_high"], zd["level_low"]
-
-
-def bisect(fn, a, b, n=200):
-    fa = fn(a)
-    for _ in range(n):
-        m = 0.5 * (a + b)
-        fm = fn(m)
-        if (fm > 0) == (fa > 0):
-            a, fa = m, fm
-        else:
-            b = m
-    return 0.5 * (a + b)
 
 
 def datasheet(sc, i):

@@ -9,6 +9,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from raising import raises_exactly
 from scipy.integrate import quad
 from scipy.optimize import brentq
 
@@ -66,23 +67,6 @@ Cd = {Cd}
 
 def orifice_scenario(**kw):
     return scn.loads(orifice_text(**kw))
-
-
-def raises_exactly(cls, match):
-    """pytest.raises that also pins the exact class (not a subclass)."""
-
-    class _Ctx:
-        def __enter__(self):
-            self.cm = pytest.raises(cls, match=match)
-            self.info = self.cm.__enter__()
-            return self.info
-
-        def __exit__(self, *exc):
-            out = self.cm.__exit__(*exc)
-            assert type(self.info.value) is cls, type(self.info.value)
-            return out
-
-    return _Ctx()
 
 
 def torricelli_time(A_tank, Cd, a, h1, h2, h_extra=0.0):
