@@ -30,7 +30,9 @@ CSS classes: ``hl-drain-app`` (every view), ``hl-outlet-picker``, ``hl-outlet-ty
 ``hl-line-fall``, ``hl-line-inlet``, ``hl-discharge``, ``hl-receiver-level``,
 ``hl-whatif-size``, ``hl-whatif-nominal``, ``hl-drain-summary``, ``hl-drain-times``,
 ``hl-level-chart``, ``hl-flow-chart``, ``hl-drain-findings``, ``hl-extra-cautions``,
-``hl-app-message``.
+``hl-app-message``; the save row (``save_view``) ``hl-save``, ``hl-save-path``,
+``hl-save-button``, ``hl-save-message``. :meth:`DrainApp.to_scenario` writes the panels back
+into a copy of the scenario (strings with units, as typed) for the record and the save button.
 
 Example
 -------
@@ -53,6 +55,7 @@ from kit.core import pipes as core_pipes
 from kit.core.drain import ORIFICE_CD, OrificeOutlet, PipedOutlet
 from kit.core.findings import cautions_for
 from kit.core.line import Segment
+from kit.errors import InputError
 from kit.panels.base import (
     KIT_ERRORS,
     InvalidInput,
@@ -71,8 +74,19 @@ from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
 from kit.panels.fluid_picker import FluidPicker
 from kit.panels.pipe_picker import PipePicker, nominal_label
+from kit.panels.scenario_text import (
+    SaveRow,
+    default_save_path,
+    exact_text,
+    field_text,
+    fitting_doc,
+    liquid_doc,
+    pipe_doc,
+    same_value,
+)
 from kit.panels.tables import Column, ResultsTable
 from kit.panels.tank_picker import OutletMark, TankPicker, TankSetup
+from kit.scenario import build_fitting as scn_fitting
 from kit.studies import tank_drainage as td
 
 __all__ = ["DrainApp", "OutletPicker", "TIMES_COLUMNS", "USER_CD", "chart_parts", "drain_figures"]
@@ -385,8 +399,10 @@ class DrainApp(widgets.VBox):
     """
 
     def __init__(self, inp: td.DrainInputs, system: str = "SI", compare_size=None,
-                 compare_label: str | None = None):
+                 compare_label: str | None = None, scenario=None):
         self.system = check_system(system)
+        #: The scenario the app was filled from (None: built from inputs); kept unchanged.
+        self.source_scenario = scenario.copy() if scenario is not None else None
         self.p_atm = inp.p_atm
         self.study: td.DrainStudy | None = None
         self.results = None
@@ -429,9 +445,11 @@ class DrainApp(widgets.VBox):
         self.extra_cautions = widgets.HTML("")
         self.extra_cautions.add_class("hl-extra-cautions")
         self.switch = DisplaySwitch([], system=system)
+        self.save_row = SaveRow(self.to_scenario, default_save_path(self.source_scenario))
         self._build_views()
         super().__init__([self.tank_view, self.liquid_view, self.outlet_view, self.whatif_view,
-                          self.results_view, self.charts_view, self.findings_view])
+                          self.results_view, self.charts_view, self.findings_view,
+                          self.save_view])
         self.add_class("hl-drain-app")
         self.switch.targets.append(self)
         self._wire()
@@ -441,7 +459,7 @@ class DrainApp(widgets.VBox):
     @classmethod
     def from_scenario(cls, sc, system: str | None = None) -> DrainApp:
         """The app filled from a tank-drainage scenario (display system from the scenario)."""
-        return cls(td.inputs(sc), system or sc.display_system)
+        return cls(td.inputs(sc), system or sc.display_system, scenario=sc)
 
     # ------------------------------------------------------------------ layout
     def _build_views(self) -> None:
@@ -461,6 +479,10 @@ class DrainApp(widgets.VBox):
                                  widgets.HTML("<b>Times to levels</b>"), self.times)
         self.charts_view = view(self.level_chart, self.flow_chart)
         self.findings_view = view(section_heading("Findings"), self.findings, self.extra_cautions)
+        self.save_view = view(section_heading("Save the inputs"), widgets.HTML(
+            '<span class="hl-note">writes the tank, levels, liquid, outlet and what-if as '
+            "set above into a scenario file (keys the panels do not show are kept as they "
+            "were)</span>"), self.save_row)
 
     def _wire(self) -> None:
         self.tank.observe(self._on_tank, names="value")
@@ -573,6 +595,240 @@ class DrainApp(widgets.VBox):
                                target=s.target, levels=s.levels, p_atm=self.p_atm,
                                surface=s.surface, p_surface=s.p_surface, vent=s.vent,
                                compare_outlet=cmp, compare_label=label)
+
+    # ------------------------------------------------------------------ saving
+    def to_scenario(self):
+        """A copy of the scenario the app was filled from, with every input the panels hold
+        written back as the engineer's text with its unit (:mod:`kit.panels.scenario_text`).
+
+        Written: ``[liquid]`` key, concentration and temperature; ``[tank]`` name, shape,
+        size, heads or strapping table; ``[drain]`` levels, levels of interest, surface and
+        vent; ``[outlet]`` (an orifice, or a line with its segments as the panel scales them,
+        the pipe in every segment, fittings in their segments); ``[compare]`` (the what-if
+        size; absent when there is none). Every other key stays as it was. Raises the kit's
+        error while an input is invalid, or for a what-if bore of a custom-bore line (the
+        scenario's ``[compare]`` takes a nominal size only).
+        """
+        from kit import scenario as scn
+
+        for p, what in ((self.tank, "the tank"), (self.fluid, "the liquid"),
+                        (self.outlet, "the outlet")):
+            if p.value is None:
+                raise InputError(what, "", f"cannot be saved: {p.error or 'an input is not valid'}")
+        base = self.source_scenario
+        sc = base.copy() if base is not None else scn.Scenario(
+            {"schema": scn.SCHEMA, "kind": "tank_drainage", "title": "tank drainage",
+             "site": {"barometric_pressure": exact_text(self.p_atm, "pressure")}})
+        doc = sc.doc
+        doc["liquid"] = liquid_doc(self.fluid, doc.get("liquid"))
+        doc["tank"] = self._tank_doc(doc.get("tank") or {})
+        doc["drain"] = self._drain_doc(doc.get("drain") or {})
+        doc["outlet"] = self._outlet_doc(doc.get("outlet") or {})
+        cmp = self._compare_doc(doc.get("compare"))
+        if cmp is None:
+            doc.pop("compare", None)
+        else:
+            doc["compare"] = cmp
+        sc._built.clear()
+        return sc
+
+    def _tank_doc(self, old: dict) -> dict:
+        t = self.tank
+        shape = t.shape.value
+        out = {k: v for k, v in old.items() if k == "note"}
+        out["name"] = t.name.value.strip() or "tank"
+        out["shape"] = shape
+        if shape == "strapping_table":
+            same_shape = old.get("shape") == shape
+            levels, volumes = [], []
+            for raw in t.table.value.splitlines():
+                if raw.strip():
+                    lv, _, vol = (x.strip() for x in raw.partition(","))
+                    levels.append(lv)
+                    volumes.append(vol)
+            built = t.value.tank
+            if same_shape and len(old.get("levels", ())) == len(levels) and all(
+                    same_value(a, b, "elevation") for a, b in zip(old["levels"], built.levels,
+                                                                 strict=True)) and all(
+                    same_value(a, b, "volume") for a, b in zip(old["volumes"], built.volumes,
+                                                              strict=True)):
+                levels, volumes = list(old["levels"]), list(old["volumes"])
+            out.update(levels=levels, volumes=volumes)
+            return out
+        out["diameter"] = field_text(t.diameter, old.get("diameter"))
+        if shape == "sphere":
+            return out
+        out["length"] = field_text(t.length, old.get("length"))
+        if shape == "horizontal_cylinder":
+            out["heads"] = self._head_doc(t.bottom, old.get("heads"))
+            return out
+        both = old.get("heads", "flat")
+        out["bottom"] = self._head_doc(t.bottom, old.get("bottom", both))
+        out["top"] = self._head_doc(t.top, old.get("top", both))
+        return out
+
+    @staticmethod
+    def _head_doc(row, old):
+        from kit.core.tank import Head
+
+        head = row.read()
+        try:
+            was = td._head(old, "head") if old is not None else None
+        except KIT_ERRORS:
+            was = None
+        if isinstance(was, str):
+            was = Head(was)
+        if was is not None and was == head:
+            return old
+        if head.kind == "flat":
+            return "flat"
+        if head.kind == "torispherical":
+            std = row.standard.value
+            return ({"kind": "torispherical", "standard": std} if std != "custom" else
+                    {"kind": "torispherical", "f": float(head.f), "k": float(head.k)})
+        out = {"kind": head.kind}
+        if row.depth.value is not None:
+            out["depth"] = field_text(row.depth)
+        elif row.ratio.value is not None:
+            out["ratio"] = float(row.ratio.value)
+        return out
+
+    def _drain_doc(self, old: dict) -> dict:
+        t = self.tank
+        s = t.value
+        out = dict(old)
+        out["start_level"] = field_text(t.start, old.get("start_level"))
+        out["target_level"] = field_text(t.target, old.get("target_level"))
+        old_levels = list(old.get("levels_of_interest") or [])
+
+        def old_entry(label, z):
+            for e in old_levels:
+                lv, lb = (e.get("level"), str(e.get("label", e.get("level")))) \
+                    if isinstance(e, dict) else (e, str(e).strip())
+                if lb == label and same_value(lv, z, "elevation"):
+                    return e
+            return None
+
+        texts = [ln.strip().partition(",")[0].strip() for ln in t.levels.value.splitlines()
+                 if ln.strip()]
+        levels = []
+        for (label, z), typed in zip(s.levels, texts, strict=True):
+            e = old_entry(label, z)
+            if e is None:
+                lv = typed if same_value(typed, z, "elevation") else exact_text(
+                    z, "elevation", self.system)
+                e = lv if label == typed else {"level": lv, "label": label}
+            levels.append(e)
+        if levels:
+            out["levels_of_interest"] = levels
+        else:
+            out.pop("levels_of_interest", None)
+        out["surface"] = s.surface
+        if s.surface == "vented":
+            out.pop("surface_pressure", None)
+        else:
+            out["surface_pressure"] = field_text(t.surface_pressure,
+                                                 old.get("surface_pressure"))
+        if s.vent is None:
+            out.pop("vent", None)
+        else:
+            ov = old.get("vent") if isinstance(old.get("vent"), dict) else {}
+            try:
+                same = td._vent(ov) == s.vent if ov else False
+            except KIT_ERRORS:
+                same = False
+            out["vent"] = dict(ov) if same else {
+                "diameter": field_text(t.vent_diameter, ov.get("diameter")),
+                "Cd": float(s.vent.Cd),
+                "allowable_vacuum": field_text(t.allowable_vacuum, ov.get("allowable_vacuum"))}
+        return out
+
+    def _outlet_doc(self, old: dict) -> dict:
+        o = self.outlet
+        outlet = o.value
+        keep = {k: v for k, v in old.items() if k == "note"}
+        if isinstance(outlet, OrificeOutlet):
+            if old.get("type") == "orifice":
+                try:
+                    was = td._orifice(old)
+                except KIT_ERRORS:
+                    was = None
+                if was is not None and (was.diameter, was.Cd, was.elevation_offset) == (
+                        outlet.diameter, outlet.Cd, outlet.elevation_offset):
+                    return dict(old)
+            out = {**keep, "type": "orifice",
+                   "name": old.get("name", "orifice") if old.get("type") == "orifice"
+                   else "orifice",
+                   "diameter": field_text(o.diameter, old.get("diameter"))}
+            if o.cd_source.value != USER_CD:
+                out["cd_key"] = o.cd_source.value
+            else:
+                out["Cd"] = float(outlet.Cd)
+            out["elevation"] = field_text(o.elevation, old.get("elevation"))
+            return out
+        line = outlet.line
+        was_line = old.get("type") == "line"
+        out = {**keep, "type": "line", "name": line.name,
+               "start_station": line.start_station}
+        out["inlet_elevation"] = field_text(o.inlet, old.get("inlet_elevation", "0 m")
+                                            if was_line else None)
+        z_out = outlet.discharge_elevation
+        if was_line and same_value(old.get("discharge_elevation"), z_out, "elevation"):
+            out["discharge_elevation"] = old["discharge_elevation"]
+        elif was_line and "discharge_elevation" in old:
+            out["discharge_elevation"] = exact_text(z_out, "elevation", self.system)
+        if outlet.receiver_level is not None:
+            out["receiver_level"] = field_text(o.receiver_level, old.get("receiver_level"))
+            if was_line and "receiver_pressure" in old:
+                out["receiver_pressure"] = old["receiver_pressure"]
+        old_segs = list(old.get("segments") or []) if was_line else []
+        rows = {}
+        fits = o.fittings.value or ()
+        for row, fit in zip(o.fittings.rows, fits, strict=True):
+            rows[id(fit)] = row.fields
+        segs = []
+        for i, seg in enumerate(line.segments):
+            s0 = old_segs[i] if i < len(old_segs) and isinstance(old_segs[i], dict) else {}
+            d = {k: v for k, v in s0.items()
+                 if k not in ("name", "station", "length", "rise", "pipe", "fittings")}
+            d["name"] = seg.name
+            if seg.end_station is not None:
+                d["station"] = seg.end_station
+            d["length"] = s0["length"] if same_value(s0.get("length"), seg.length, "length") \
+                else exact_text(seg.length, "length", self.system)
+            d["rise"] = s0["rise"] if same_value(s0.get("rise"), seg.rise, "length") \
+                else exact_text(seg.rise, "length", self.system)
+            d["pipe"] = pipe_doc(seg.pipe, s0.get("pipe"), self.system)
+            pool = []
+            for j, f in enumerate(s0.get("fittings") or ()):
+                try:
+                    pool.append((scn_fitting(f, f"outlet.segments[{i}].fittings[{j}]"), f))
+                except KIT_ERRORS:
+                    continue
+            fl = [fitting_doc(f, pool, rows.get(id(f)), self.system) for f in seg.fittings]
+            if fl:
+                d["fittings"] = fl
+            segs.append(d)
+        out["segments"] = segs
+        return out
+
+    def _compare_doc(self, old):
+        size = self._whatif_value()
+        if size is None:
+            return None
+        sc_size, _ = self._scenario_compare
+        old = old if isinstance(old, dict) else None
+        if old is not None and size == sc_size:
+            return dict(old)
+        label = self._whatif_label(size).strip()
+        if self.outlet.kind.value == "orifice":
+            return {"label": label, "outlet_diameter": field_text(self.whatif_size)}
+        if isinstance(size, str):
+            return {"label": label, "nominal": size,
+                    "schedule": str(self.outlet.pipe.value.schedule)}
+        raise InputError("what-if bore", size, "cannot be saved for a line of custom bore "
+                         "(a scenario's [compare] takes a nominal size); clear it to save",
+                         "m")
 
     def recompute(self) -> None:
         """Read the panels, drain the tank through both outlets and re-render."""

@@ -30,7 +30,11 @@ CSS classes: ``hl-line-sizing`` (the app), ``hl-flow-design``/``-min``/``-max``,
 ``hl-condition``, ``hl-route``, ``hl-route-length``, ``hl-points``, ``hl-candidates``,
 ``hl-reason``, ``hl-velocity-chart``, ``hl-dp-chart``, ``hl-profile-size``,
 ``hl-profile-chart``, ``hl-size-findings``, ``hl-batch``, ``hl-batch-text``,
-``hl-batch-run``, ``hl-batch-table``, ``hl-app-message``.
+``hl-batch-run``, ``hl-batch-table``, ``hl-app-message``; the save row (``save_view``)
+``hl-save``, ``hl-save-path``, ``hl-save-button``, ``hl-save-message``.
+
+:meth:`LineSizingApp.to_scenario` writes the panels back into a copy of the scenario (strings
+with units, as typed) for the record and for the "Save scenario" button.
 
 Example
 -------
@@ -71,6 +75,15 @@ from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
 from kit.panels.fitting_list import FittingList
 from kit.panels.fluid_picker import FluidPicker
+from kit.panels.scenario_text import (
+    SaveRow,
+    default_save_path,
+    exact_text,
+    field_text,
+    fitting_rows,
+    liquid_doc,
+    same_value,
+)
 from kit.panels.tables import Column, ResultsTable
 from kit.studies import line_sizing as ls
 
@@ -184,8 +197,11 @@ class LineSizingApp(widgets.VBox):
     """
 
     def __init__(self, inp: ls.SizingInputs, system: str = "SI", batch_text: str | None = None,
-                 sizes: tuple | None = None):
+                 sizes: tuple | None = None, scenario=None):
         self.system = check_system(system)
+        #: The scenario the app was filled from (None: built from inputs); kept unchanged.
+        self.source_scenario = scenario.copy() if scenario is not None else None
+        self._batch_given = batch_text or ""
         self.p_baro = inp.p_baro
         self.fixed_sizes = tuple(sizes) if sizes else None
         self.erosional_C = inp.erosional_C
@@ -290,6 +306,8 @@ class LineSizingApp(widgets.VBox):
         self.batch_table = ResultsTable(BATCH_COLUMNS, system=system)
         self.batch_table.add_class("hl-batch-table")
         self.switch = DisplaySwitch([], system=system)
+        self.save_row = SaveRow(self.to_scenario, default_save_path(
+            self.source_scenario if self.source_scenario is not None else None))
         super().__init__(self._layout())
         self.add_class("hl-line-sizing")
         self.switch.targets.append(self)
@@ -303,7 +321,7 @@ class LineSizingApp(widgets.VBox):
         """The app filled from a line-sizing scenario (display system from the scenario)."""
         inp = ls.inputs(sc)
         sizes = tuple(str(x) for x in sc.get("sizing.sizes", ()) or ()) or None
-        return cls(inp, system or sc.display_system, ls.batch_text(sc), sizes)
+        return cls(inp, system or sc.display_system, ls.batch_text(sc), sizes, scenario=sc)
 
     # ------------------------------------------------------------------ layout
     def _layout(self):
@@ -348,8 +366,14 @@ class LineSizingApp(widgets.VBox):
             self.batch_text, self.batch_run, self.batch_message, self.batch_table])
         self.batch_view.add_class("hl-batch")
         self.batch_view.add_class("hl-line-sizing")
+        self.save_view = widgets.VBox([
+            section_heading("Save the inputs"),
+            widgets.HTML('<span class="hl-note">writes every input above, as typed, into a '
+                         "scenario file (keys the panels do not show are kept as they "
+                         "were)</span>"), self.save_row])
+        self.save_view.add_class("hl-line-sizing")
         return [self.switch, self.inputs_view, self.route_view, self.candidates_view,
-                self.charts_view, self.profile_view, self.batch_view]
+                self.charts_view, self.profile_view, self.batch_view, self.save_view]
 
     # ------------------------------------------------------------------ wiring
     def _wire(self) -> None:
@@ -478,6 +502,86 @@ class LineSizingApp(widgets.VBox):
                                self.standard.value, self.schedule.value, self.material.value,
                                self.condition.value, pipes, field_value(self.end_pressure),
                                self.p_baro, field_value(self.vapour_margin), self.erosional_C)
+
+    def to_scenario(self):
+        """A copy of the scenario the app was filled from, with every input the panels hold
+        written back as the engineer's text with its unit (:mod:`kit.panels.scenario_text`).
+
+        Written: ``[sizing]`` flows, duty, pipe standard/schedule/material/condition, end
+        pressure, vapour margin; ``[criteria]`` (only values that differ from the duty class);
+        ``[liquid]`` key, concentration and temperature; ``[route]`` length, start, profile
+        points and fittings; ``[batch] text`` when the line list was edited. Every other key
+        stays as it was. The liquid pressure box is not a scenario input (the state is taken
+        at the barometric pressure). Raises the kit's error while an input is invalid.
+        """
+        from kit import scenario as scn
+
+        base = self.source_scenario
+        sc = base.copy() if base is not None else scn.Scenario(
+            {"schema": scn.SCHEMA, "kind": "line_sizing", "title": "line sizing",
+             "site": {"barometric_pressure": exact_text(self.p_baro, "pressure")}})
+        doc = sc.doc
+        doc["liquid"] = liquid_doc(self.fluid, doc.get("liquid"))
+        s = dict(doc.get("sizing") or {})
+        for key, f in (("flow_design", self.flow_design), ("flow_min", self.flow_min),
+                       ("flow_max", self.flow_max), ("end_pressure", self.end_pressure),
+                       ("vapour_margin", self.vapour_margin)):
+            s[key] = field_text(f, s.get(key))
+        s.update(duty=self.duty.value, standard=self.standard.value,
+                 schedule=self.schedule.value, material=self.material.value,
+                 condition=self.condition.value)
+        doc["sizing"] = s
+        crit = dict(doc.get("criteria") or {})
+        scenario_duty = s.get("duty") == (base.get("sizing.duty") if base else None)
+        duty = DUTY_CLASSES[self.duty.value]
+        for key, f in (("v_min", self.v_min), ("v_max", self.v_max), ("dp_max", self.dp_max)):
+            text = field_text(f, crit.get(key) if scenario_duty else None)
+            if scenario_duty and key in crit and text == crit[key]:
+                continue
+            if same_value(text, getattr(duty, key), f.kind):
+                crit.pop(key, None)
+            else:
+                crit[key] = text
+        if crit:
+            doc["criteria"] = crit
+        else:
+            doc.pop("criteria", None)
+        r = dict(doc.get("route") or {})
+        r["length"] = field_text(self.length, r.get("length"))
+        r["start_elevation"] = field_text(self.start_elevation, r.get("start_elevation"))
+        r["start_name"] = self.start_name.value.strip() or "start"
+        old = [p for p in (r.get("points") or []) if isinstance(p, dict)]
+        by_name = {str(p.get("name")): p for p in old}
+        pts = []
+        for i, row in enumerate(self.points):
+            o = by_name.get(row.name.value.strip()) or (old[i] if i < len(old) else {})
+            last = i == len(self.points) - 1
+            name = row.name.value.strip() or f"point {i + 1}"
+            if last:
+                x = o.get("chainage") if same_value(o.get("chainage"), self.length.value,
+                                                    "length") else r["length"]
+            else:
+                x = field_text(row.chainage, o.get("chainage"))
+            pts.append({"name": name, "chainage": x,
+                        "elevation": field_text(row.elevation, o.get("elevation"))})
+        untouched_default = (not old and len(pts) == 1 and pts[0]["name"] == "end"
+                             and self.points[0].elevation.value == self.start_elevation.value)
+        if untouched_default:
+            r.pop("points", None)
+        else:
+            r["points"] = pts
+        r["fittings"] = fitting_rows(self.fittings, r.get("fittings"), "route.fittings",
+                                     self.system)
+        if not r["fittings"]:
+            r.pop("fittings")
+        doc["route"] = r
+        if self.batch_text.value != self._batch_given:
+            if self.batch_text.value.strip():
+                doc["batch"] = {"text": self.batch_text.value}
+            else:
+                doc.pop("batch", None)
+        sc._built.clear()
+        return sc
 
     @staticmethod
     def _key(inp: ls.SizingInputs) -> tuple:

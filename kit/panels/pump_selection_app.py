@@ -14,7 +14,9 @@ Sections (each a widget the notebook shows in its own cell):
 - ``comparison``: the candidates side by side, and every operating point (``hl-candidates``,
   ``hl-points``);
 - ``control_view``: throttling against speed control for the recommended pump (``hl-control``);
-- ``findings``: a :class:`~kit.panels.findings_view.FindingsView` with the cautions.
+- ``findings``: a :class:`~kit.panels.findings_view.FindingsView` with the cautions;
+- ``save_view``: a path and a "Save scenario" button writing :meth:`PumpSelectionApp.to_scenario`
+  (CSS ``hl-save``, ``hl-save-path``, ``hl-save-button``, ``hl-save-message``).
 
 Example
 -------
@@ -35,12 +37,14 @@ import numpy as np
 from kit import units
 from kit.core.findings import Severity
 from kit.core.operating import BEP_REGIONS
+from kit.errors import InputError
 from kit.panels.base import KIT_ERRORS, check_system, error_html, error_widget
 from kit.panels.charts import to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
 from kit.panels.pump_editor import PumpEditor
+from kit.panels.scenario_text import SaveRow, default_save_path
 from kit.panels.tables import Column, results_table_html, unit_label
 from kit.studies import pump_selection as ps
 
@@ -248,9 +252,14 @@ class PumpSelectionApp(widgets.VBox):
             widgets.HTML("<b>Every operating point</b>"), self.points_table])
         self.control_view = widgets.VBox([self.style, self.control_table])
         self.switch = DisplaySwitch([], system=self.display)
+        self.save_row = SaveRow(self.to_scenario, default_save_path(scenario))
+        self.save_view = widgets.VBox([
+            widgets.HTML("<b>Save the inputs</b> <span class='hl-note'>(the liquid "
+                         "temperatures and every pump as edited, written into a scenario file; "
+                         "other keys kept as they were)</span>"), self.save_row])
         super().__init__([self.switch, self.inputs, self.chart, self.comparison,
-                          self.control_view, self.findings])
-        for w in (self, self.inputs, self.comparison, self.control_view):
+                          self.control_view, self.findings, self.save_view])
+        for w in (self, self.inputs, self.comparison, self.control_view, self.save_view):
             w.add_class("hl-pump-app")
         self.switch.targets.append(self)
         self._render()
@@ -489,6 +498,20 @@ class PumpSelectionApp(widgets.VBox):
         return head + results_table_html(rows, CONTROL_COLUMNS, sysm) + tail
 
     # ------------------------------------------------------------------ public helpers
+    def to_scenario(self):
+        """A copy of the working scenario: the original with the liquid temperatures and
+        every pump's datasheet points as accepted from the panels (strings with units, as
+        typed). Raises the kit's error while a temperature or the pump being edited is
+        invalid (the working copy then still holds the last accepted values)."""
+        for f in (self.t_min, self.t_max):
+            if not f.valid or f.value is None:
+                raise InputError(f.field, f.text, f"cannot be saved: {f.error or 'not valid'}")
+        if self.editor.value is None:
+            name = self.pumps[int(self.choice.value)].name
+            raise InputError(f"pump '{name}'", "", "has an input refused (see beside the "
+                             "table); it cannot be saved")
+        return self.scenario.copy()
+
     def set_system(self, system: str) -> None:
         """Show every chart and table in 'SI' or 'US' (inputs keep their text)."""
         self.display = check_system(system)

@@ -292,3 +292,103 @@ def test_docstring_examples_run(module):
 
     result = doctest.testmod(importlib.import_module(module), optionflags=doctest.ELLIPSIS)
     assert result.attempted > 0 and result.failed == 0
+
+
+# ------------------------------------------------------------------ saving the state
+
+def _values(res) -> dict:
+    return {v.key: v.value for v in res.values}
+
+
+def assert_same_results(a, b):
+    """Every reported value of ``a`` equals that of ``b`` (rel 1e-9; inf and nan alike)."""
+    va, vb = _values(a), _values(b)
+    assert va.keys() == vb.keys()
+    for k, x in va.items():
+        y = vb[k]
+        assert x == y or math.isclose(x, y, rel_tol=1e-9) or (math.isnan(x) and math.isnan(y)), k
+
+
+def reloaded(app):
+    return scn.loads(scn.dumps(app.to_scenario()))
+
+
+def test_unedited_round_trip_gives_the_same_document_and_results(app, demo_sc):
+    from kit.results import compute
+
+    back = reloaded(app)
+    assert back.doc == demo_sc.doc
+    assert_same_results(compute(back), compute(demo_sc))
+
+
+def test_edited_outlet_size_is_saved_in_every_segment_and_drains_faster(app, demo_sc):
+    from kit.results import compute
+
+    app.outlet.pipe.nominal.value = "3"
+    back = reloaded(app)
+    segs = back.doc["outlet"]["segments"]
+    assert [s["pipe"]["nominal"] for s in segs] == ["3", "3", "3"]
+    assert [s["length"] for s in segs] == [s["length"] for s in demo_sc.doc["outlet"]["segments"]]
+    assert [s.get("fittings") for s in segs] == [s.get("fittings") for s in
+                                                 demo_sc.doc["outlet"]["segments"]]
+    r0, r1 = compute(demo_sc), compute(back)
+    # a larger bore passes more flow at the same head (Torricelli 1644 / Bernoulli, standard
+    # result): the drain is quicker
+    assert r1.value("drain.total_time") < r0.value("drain.total_time")
+    assert r1.value("drain.total_time") == pytest.approx(app.study.result.total_time, rel=1e-9)
+
+
+def test_edited_length_whatif_and_level_follow_the_loader_layout(app, demo_sc):
+    app.outlet.length.input.value = "6 m"
+    app.whatif_nominal.value = "4"
+    app.tank.levels.value += "\n200 mm, test level"
+    back = reloaded(app)
+    segs = back.doc["outlet"]["segments"]
+    from kit import units
+
+    lengths = [units.parse(s["length"], "length", "l") for s in segs]
+    assert sum(lengths) == pytest.approx(6.0, rel=1e-12)
+    assert [s["rise"] for s in segs] == [s["rise"] for s in demo_sc.doc["outlet"]["segments"]]
+    assert back.doc["compare"] == {"label": "NPS 4 line", "nominal": "4", "schedule": "10S"}
+    assert back.doc["drain"]["levels_of_interest"][-1] == {"level": "200 mm",
+                                                           "label": "test level"}
+    assert back.doc["drain"]["levels_of_interest"][:3] == \
+        demo_sc.doc["drain"]["levels_of_interest"]
+    st = td.study(back)
+    assert st.result.total_time == pytest.approx(app.study.result.total_time, rel=1e-9)
+    assert st.compare.result.total_time == pytest.approx(app.study.compare.result.total_time,
+                                                         rel=1e-9)
+
+
+def test_orifice_outlet_is_saved_with_its_cd_key(app):
+    app.outlet.kind.value = "orifice"
+    app.outlet.diameter.input.value = "40 mm"
+    back = reloaded(app)
+    o = back.doc["outlet"]
+    assert o["type"] == "orifice" and o["diameter"] == "40 mm" and o["cd_key"] == "sharp"
+    assert td.study(back).result.total_time == pytest.approx(app.study.result.total_time,
+                                                             rel=1e-9)
+
+
+def test_invalid_panel_raises_the_kit_error(app):
+    app.tank.start.input.value = "2.35 kg"
+    with pytest.raises(InputError, match="tank"):
+        app.to_scenario()
+
+
+def test_save_button_writes_refuses_silent_overwrite_and_reports_errors(app, tmp_path):
+    row = app.save_row
+    assert row.path.value.endswith("marlow_vale_cip_dump_edited.toml")
+    target = tmp_path / "dump.toml"
+    row.path.value = str(target)
+    row.button.click()
+    assert "saved to" in row.message.value and scn.load(target).doc["outlet"]["type"] == "line"
+    app.outlet.pipe.nominal.value = "3"
+    row.button.click()
+    assert "press again to overwrite" in row.message.value
+    assert scn.load(target).doc["outlet"]["segments"][0]["pipe"]["nominal"] == "2"
+    row.button.click()
+    assert scn.load(target).doc["outlet"]["segments"][0]["pipe"]["nominal"] == "3"
+    row.path.value = str(tmp_path)
+    row.button.click()
+    assert "hl-error-text" in row.message.value and "folder" in row.message.value

@@ -177,3 +177,136 @@ def test_figures_are_static_copies(app):
 
     figs = app.figures()
     assert len(figs) == 3 and all(type(f) is go.Figure for f in figs)
+
+
+# ------------------------------------------------------------------ saving the state
+
+def _values(res) -> dict:
+    return {v.key: v.value for v in res.values}
+
+
+def assert_same_results(a, b):
+    """Every reported value of ``a`` equals that of ``b`` (rel 1e-9; inf/nan alike)."""
+    va, vb = _values(a), _values(b)
+    assert va.keys() == vb.keys()
+    for k, x in va.items():
+        y = vb[k]
+        assert x == y or math.isclose(x, y, rel_tol=1e-9) or (math.isnan(x) and math.isnan(y)), k
+
+
+def _reloaded(app, sc):
+    # the source is kept so the line list named by [batch] file is found beside the scenario
+    return scn.loads(scn.dumps(app.to_scenario()), sc.source)
+
+
+def test_unedited_round_trip_gives_the_same_document_and_results(app, sc):
+    from kit.results import compute
+
+    back = _reloaded(app, sc)
+    assert back.doc == sc.doc  # nothing changed: every string kept as written
+    assert_same_results(compute(back), compute(sc))
+    assert app.to_scenario() is not app.source_scenario
+
+
+def test_edited_design_flow_is_saved_as_typed_and_raises_the_velocity(app, sc):
+    from kit.results import compute
+
+    app.flow_design.input.value = "400 gpm"
+    back = _reloaded(app, sc)
+    assert back.doc["sizing"]["flow_design"] == "400 gpm"
+    assert back.doc["sizing"]["flow_min"] == sc.doc["sizing"]["flow_min"]
+    r0, r1 = compute(sc), compute(back)
+    # velocity = Q / A (definition): the same bore at 400 instead of 350 gpm
+    v0, v1 = r0.value("size.3.velocity"), r1.value("size.3.velocity")
+    assert v1 == pytest.approx(v0 * 400 / 350, rel=1e-9)
+    assert r1.value("design.flow") == pytest.approx(400 * GPM, rel=1e-12)
+    # the record of the saved scenario is what the app shows
+    shown = app.study.result.candidates[app.study.index_of("3")].velocity
+    assert v1 == pytest.approx(shown, rel=1e-9)
+
+
+def test_edited_route_point_fitting_and_duty_are_written_in_the_loader_layout(app, sc):
+    from kit.core.fittings import Fitting
+    from kit.studies import line_sizing as ls
+
+    app._on_add_point()
+    app.points[-2].elevation.input.value = "30 ft"
+    app.fittings.value = (*app.fittings.value,
+                          Fitting("bend", 2, {"angle": 45.0, "R_D": 3.0}, "field bends"))
+    app.duty.value = "general_transfer"
+    back = _reloaded(app, sc)
+    r = back.doc["route"]
+    assert [p["name"] for p in r["points"]][-1] == "T-12 roof inlet"
+    assert r["points"][-2]["elevation"] == "30 ft"
+    assert r["points"][-1] == sc.doc["route"]["points"][-1]  # matched by name, kept as written
+    assert r["fittings"][:5] == sc.doc["route"]["fittings"]
+    assert r["fittings"][5] == {"kind": "bend", "count": 2, "label": "field bends",
+                                "angle": 45, "R_D": 3}
+    assert back.doc["sizing"]["duty"] == "general_transfer"
+    assert "criteria" not in back.doc  # the duty class's own values: no override
+    inp = ls.inputs(back)
+    got, shown = inp.route, app.study.inputs.route
+    assert got.fittings == shown.fittings and got.length == shown.length
+    assert [p[0] for p in got.points] == [p[0] for p in shown.points]
+    assert np.allclose([p[1:] for p in got.points], [p[1:] for p in shown.points], rtol=1e-12)
+    assert inp.duty == DUTY_CLASSES["general_transfer"]
+
+
+def test_edited_criterion_goes_to_criteria_with_its_unit(app, sc):
+    app.v_max.input.value = "8 ft/s"
+    back = _reloaded(app, sc)
+    assert back.doc["criteria"] == {"v_max": "8 ft/s"}
+
+
+def test_scenario_text_examples():
+    import doctest
+
+    from kit.panels import scenario_text
+
+    result = doctest.testmod(scenario_text, optionflags=doctest.ELLIPSIS)
+    assert result.attempted > 0 and result.failed == 0
+
+
+def test_invalid_panel_raises_the_kit_error(app):
+    from kit.errors import InputError
+
+    app.flow_design.input.value = "400 kg"
+    with pytest.raises(InputError, match="design flow"):
+        app.to_scenario()
+
+
+def test_save_button_writes_refuses_silent_overwrite_and_reports_errors(app, sc, tmp_path):
+    from kit.results import compute
+
+    row = app.save_row
+    assert row.path.value.endswith("harlow_flats_diesel_transfer_edited.toml")
+    assert Path(row.path.value).parent == DEMO.parent
+    for css, w in (("hl-save", row), ("hl-save-path", row.path),
+                   ("hl-save-button", row.button), ("hl-save-message", row.message)):
+        assert css in w._dom_classes
+    target = tmp_path / "edited.toml"
+    row.path.value = str(target)
+    app.flow_design.input.value = "380 gpm"
+    row.button.click()
+    assert "saved to" in row.message.value and target.exists()
+    saved = scn.load(target)
+    assert saved.doc["sizing"]["flow_design"] == "380 gpm"
+    # saved into another folder: the line list goes inline, so the file stands on its own
+    assert saved.doc["batch"]["text"] == (DEMO.parent / sc.doc["batch"]["file"]).read_text()
+    assert compute(saved).value("design.flow") == pytest.approx(380 * GPM, rel=1e-12)
+    # an existing file: the first press asks, the second overwrites
+    app.flow_design.input.value = "390 gpm"
+    row.button.click()
+    assert "press again to overwrite" in row.message.value
+    assert scn.load(target).doc["sizing"]["flow_design"] == "380 gpm"
+    row.button.click()
+    assert scn.load(target).doc["sizing"]["flow_design"] == "390 gpm"
+    # a folder is not a file: an error, nothing written
+    row.path.value = str(tmp_path)
+    row.button.click()
+    assert "hl-error-text" in row.message.value and "folder" in row.message.value
+    # an invalid panel: the kit's error beside the button
+    row.path.value = str(tmp_path / "other.toml")
+    app.flow_design.input.value = "oops"
+    row.button.click()
+    assert "not saved" in row.message.value and not (tmp_path / "other.toml").exists()

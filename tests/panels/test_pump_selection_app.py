@@ -124,3 +124,81 @@ def test_docstring_examples():
 
     result = doctest.testmod(mod, optionflags=doctest.ELLIPSIS)
     assert result.attempted > 0 and result.failed == 0
+
+
+# ------------------------------------------------------------------ saving the state
+
+def _values(res) -> dict:
+    return {v.key: v.value for v in res.values}
+
+
+def assert_same_results(a, b):
+    """Every reported value of ``a`` equals that of ``b`` (rel 1e-9; nan alike)."""
+    va, vb = _values(a), _values(b)
+    assert va.keys() == vb.keys()
+    for k, x in va.items():
+        y = vb[k]
+        assert x == y or np.isclose(x, y, rtol=1e-9, atol=0) or (np.isnan(x) and np.isnan(y)), k
+
+
+def test_unedited_round_trip_gives_the_same_document_and_results(app, scenario):
+    from kit.results import compute
+
+    out = app.to_scenario()
+    assert out is not app.scenario  # a copy: saving does not tie the file to the app
+    back = scn.loads(scn.dumps(out))
+    assert back.doc == scenario.doc
+    assert_same_results(compute(back), compute(scenario))
+
+
+def test_edited_head_point_is_saved_and_moves_the_operating_flow(app, scenario):
+    from kit.results import compute
+
+    app.editor.set_point(3, head="74")  # 150 m3/h: 70 m -> 74 m on the first pump
+    back = scn.loads(scn.dumps(app.to_scenario()))
+    assert back.doc["pumps"][0]["head"][3] == "74 m"
+    assert back.doc["pumps"][0]["head"][:3] == scenario.doc["pumps"][0]["head"][:3]
+    assert back.doc["pumps"][1] == scenario.doc["pumps"][1]
+    r0, r1 = compute(scenario), compute(back)
+    # a higher pump curve meets the same rising system curve at a higher flow (common
+    # practice, no source: the operating point is where the curves cross)
+    assert r1.value("pumps[0].Q_min") > r0.value("pumps[0].Q_min")
+    assert r1.value("pumps[0].Q_max") > r0.value("pumps[0].Q_max")
+    assert_same_results(r1, app.results)  # the record is what the app shows
+
+
+def test_edited_temperature_is_saved_as_typed(app):
+    app.t_max.input.value = "35 degC"
+    back = scn.loads(scn.dumps(app.to_scenario()))
+    assert back.doc["liquid"]["temperature_max"] == "35 degC"
+    assert back.doc["liquid"]["temperature_min"] == "4 degC"
+
+
+def test_invalid_temperature_raises_the_kit_error(app):
+    from kit.errors import InputError
+
+    app.t_max.input.value = "35 kg"
+    with pytest.raises(InputError, match="liquid.temperature_max"):
+        app.to_scenario()
+
+
+def test_save_button_writes_refuses_silent_overwrite_and_reports_errors(app, tmp_path):
+    row = app.save_row
+    assert row.path.value.endswith("kestrel_ridge_booster_edited.toml")
+    assert "hl-save" in row._dom_classes and "hl-save-button" in row.button._dom_classes
+    target = tmp_path / "booster.toml"
+    target.write_text("# a file already there\n", encoding="utf-8")
+    row.path.value = str(target)
+    app.editor.set_point(3, head="74")
+    row.button.click()
+    assert "press again to overwrite" in row.message.value
+    assert target.read_text(encoding="utf-8") == "# a file already there\n"
+    row.button.click()
+    assert "saved to" in row.message.value
+    assert scn.load(target).doc["pumps"][0]["head"][3] == "74 m"
+    row.path.value = str(tmp_path)
+    row.button.click()
+    assert "hl-error-text" in row.message.value
+    row.path.value = str(tmp_path / "missing_folder" / "x.toml")
+    row.button.click()
+    assert "cannot save" in row.message.value
