@@ -14,7 +14,8 @@
   pressure and the vapour-pressure margin, and the fittings
   (:class:`~kit.panels.fitting_list.FittingList`);
 - **results**: the candidates table (recommended size marked, with the reason), velocity
-  and pressure drop against bore with the criteria bands shaded, the HGL/EGL profile of a
+  and pressure drop against bore with the criteria bands shaded (two panels of one chart,
+  :class:`BoreChart`, so a change redraws one figure), the HGL/EGL profile of a
   chosen size (default: the recommended one) with the vapour-pressure line and the
   lowest-pressure station, and the findings of that size;
 - **batch**: a line list pasted as CSV, sized on "Size the list" into a table with a
@@ -23,12 +24,15 @@
 The app computes nothing itself: it reads the widgets into
 :class:`kit.studies.line_sizing.SizingInputs` and runs :func:`kit.studies.line_sizing.run`;
 results are cached per input, so a change that does not alter the inputs (a size chosen for
-the profile, the display system) only re-renders.
+the profile, the display system) only re-renders. A re-render writes only what changed (the
+size list, the profile and the findings are left alone when their content is the same), so
+the browser redraws as little as it can.
 
 CSS classes: ``hl-line-sizing`` (the app), ``hl-flow-design``/``-min``/``-max``,
 ``hl-duty``, ``hl-criteria``, ``hl-standard``, ``hl-schedule``, ``hl-material``,
 ``hl-condition``, ``hl-route``, ``hl-route-length``, ``hl-points``, ``hl-candidates``,
-``hl-reason``, ``hl-velocity-chart``, ``hl-dp-chart``, ``hl-profile-size``,
+``hl-reason``, ``hl-bore-chart`` (also ``hl-velocity-chart`` and ``hl-dp-chart``: both panels
+are in it), ``hl-profile-size``,
 ``hl-profile-chart``, ``hl-size-findings``, ``hl-batch``, ``hl-batch-text``,
 ``hl-batch-run``, ``hl-batch-table``, ``hl-app-message``; the save row (``save_view``)
 ``hl-save``, ``hl-save-path``, ``hl-save-button``, ``hl-save-message``.
@@ -69,7 +73,7 @@ from kit.panels.base import (
     section_heading,
     stale_html,
 )
-from kit.panels.charts import Chart, Series, to_display
+from kit.panels.charts import Chart, Series, axis_title, to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
@@ -87,7 +91,7 @@ from kit.panels.scenario_text import (
 from kit.panels.tables import Column, ResultsTable
 from kit.studies import line_sizing as ls
 
-__all__ = ["LineSizingApp", "CANDIDATE_COLUMNS", "BATCH_COLUMNS", "CRITERIA_NOTE"]
+__all__ = ["LineSizingApp", "BoreChart", "CANDIDATE_COLUMNS", "BATCH_COLUMNS", "CRITERIA_NOTE"]
 
 #: The label beside the duty-class criteria.
 CRITERIA_NOTE = "common practice, no source, editable"
@@ -141,6 +145,114 @@ def _update(chart: Chart, series, **layout) -> None:
             fig.update_layout(**layout)
 
 
+class BoreChart(widgets.VBox):
+    """Velocity and friction pressure drop against bore: two panels, side by side with a
+    shared bore axis, in ONE plotly ``FigureWidget`` (one redraw per change instead of two).
+
+    The figure is built whole once (``plotly.subplots.make_subplots``, every trace in place,
+    then wrapped in one ``FigureWidget``); :meth:`show` updates the traces and the axis
+    ranges in place in one ``batch_update`` (plotly sends only what changed, nothing when
+    nothing did). Each panel has its own legend below it. The pressure-drop axis is
+    logarithmic.
+
+    Parameters
+    ----------
+    n_velocity, n_dp : int
+        The number of series of each panel (fixed for the chart's life).
+    system : str
+        'SI' or 'US'.
+    height : int
+        Figure height [px].
+
+    Attributes
+    ----------
+    figure : plotly.graph_objects.FigureWidget
+        Traces ``0 .. n_velocity-1`` on the velocity panel (axes x, y), the others on the
+        pressure-drop panel (axes x2, y2).
+    series : tuple
+        (velocity series, pressure-drop series), SI.
+    """
+
+    #: (y kind, y-axis name, panel title) of each panel.
+    PANELS = (("velocity", "velocity", "Velocity against bore"),
+              ("pressure_per_length", "pressure drop", "Friction pressure drop against bore"))
+
+    def __init__(self, n_velocity: int, n_dp: int, system: str = "SI", height: int = 480):
+        import plotly.graph_objects as go
+        from plotly.subplots import make_subplots
+
+        self.system = check_system(system)
+        self.counts = (int(n_velocity), int(n_dp))
+        self.series: tuple = ((), ())
+        self._ranges: dict = {}
+        fig = make_subplots(rows=1, cols=2, subplot_titles=[p[2] for p in self.PANELS],
+                            horizontal_spacing=0.1)
+        for col, n in enumerate(self.counts, start=1):
+            for _ in range(n):
+                fig.add_trace(go.Scatter(x=[], y=[], legend="legend" if col == 1 else "legend2"),
+                              row=1, col=col)
+        fig.update_layout(
+            height=height, margin=dict(l=60, r=20, t=50, b=150), template="plotly_white",
+            legend=dict(orientation="v", x=0.0, xanchor="left", y=-0.2, yanchor="top",
+                        xref="paper", yref="paper"),
+            legend2=dict(orientation="v", x=0.56, xanchor="left", y=-0.2, yanchor="top",
+                         xref="paper", yref="paper"),
+            xaxis2=dict(matches="x"), yaxis2=dict(type="log"))
+        self.figure = go.FigureWidget(fig)
+        super().__init__(children=(self.figure,))
+        for css in ("hl-chart", "hl-bore-chart", "hl-velocity-chart", "hl-dp-chart"):
+            self.add_class(css)
+        self._render()
+
+    def panel_traces(self, panel: int) -> tuple:
+        """The traces of panel 0 (velocity) or 1 (pressure drop)."""
+        n = self.counts[0]
+        return tuple(self.figure.data[:n] if panel == 0 else self.figure.data[n:])
+
+    def show(self, v_series, dp_series, x_range, v_range, dp_range) -> None:
+        """Show the series (SI) of each panel with the bore range ``x_range`` [m], the velocity
+        range ``v_range`` [m/s] and the pressure-drop range ``dp_range`` [Pa/m] (log axis)."""
+        v_series, dp_series = tuple(v_series), tuple(dp_series)
+        if (len(v_series), len(dp_series)) != self.counts:
+            raise ValueError(f"BoreChart holds {self.counts} series, got "
+                             f"{(len(v_series), len(dp_series))}")
+        self.series = (v_series, dp_series)
+        self._ranges = dict(x=tuple(x_range), v=tuple(v_range), dp=tuple(dp_range))
+        self._render()
+
+    def set_system(self, system: str) -> None:
+        """Re-render the axes and traces in ``system`` from the stored SI series."""
+        self.system = check_system(system)
+        self._render()
+
+    def _render(self) -> None:
+        sysm, fig = self.system, self.figure
+        layout = {"xaxis_title_text": axis_title("bore", "diameter", sysm),
+                  "xaxis2_title_text": axis_title("bore", "diameter", sysm),
+                  "yaxis_title_text": axis_title(self.PANELS[0][1], self.PANELS[0][0], sysm),
+                  "yaxis2_title_text": axis_title(self.PANELS[1][1], self.PANELS[1][0], sysm)}
+        r = self._ranges
+        if r:
+            x = [float(a) for a in to_display(r["x"], "diameter", sysm)]
+            dpy = to_display(r["dp"], "pressure_per_length", sysm)
+            layout.update(xaxis_range=x, xaxis2_range=x,
+                          yaxis_range=[float(a) for a in to_display(r["v"], "velocity", sysm)],
+                          yaxis2_range=[math.log10(dpy[0]), math.log10(dpy[1])])
+        with fig.batch_update():
+            for panel, series in enumerate(self.series if r else ()):
+                kind = self.PANELS[panel][0]
+                for trace, s in zip(self.panel_traces(panel), series, strict=True):
+                    trace.x = to_display(s.x, "diameter", sysm)
+                    trace.y = to_display(s.y, kind, sysm)
+                    trace.name = s.name
+                    trace.mode = s.mode
+                    trace.line.dash = s.dash
+                    trace.line.color = s.color
+                    if s.extra:
+                        trace.update(s.extra)
+            fig.update_layout(**layout)
+
+
 class _PointRow(widgets.HBox):
     """One point of the elevation profile: name, chainage, elevation, remove."""
 
@@ -189,7 +301,9 @@ class LineSizingApp(widgets.VBox):
     fluid : FluidPicker
     fittings : FittingList
     table, batch_table : ResultsTable
-    v_chart, dp_chart, profile_chart : Chart
+    bore_chart : BoreChart
+        Velocity and pressure drop against bore (two panels of one figure).
+    profile_chart : Chart
     findings : FindingsView
     batch_text : ipywidgets.Textarea
     batch_run : ipywidgets.Button
@@ -210,6 +324,7 @@ class LineSizingApp(widgets.VBox):
         self.shown: int | None = None
         self._pinned: str | None = None   # nominal size the user chose for the profile
         self._cache: dict = {}
+        self._shown_key: tuple | None = None   # (result, index, system) the profile shows
         self._hold = 0
         self.recomputes = 0
 
@@ -276,14 +391,7 @@ class LineSizingApp(widgets.VBox):
         self.table.add_class("hl-candidates")
         self.reason = widgets.HTML("")
         self.reason.add_class("hl-reason")
-        self.v_chart = Chart("diameter", "velocity", title="Velocity against bore",
-                             x_name="bore", system=system, height=340)
-        self.v_chart.add_class("hl-velocity-chart")
-        self.dp_chart = Chart("diameter", "pressure_per_length",
-                              title="Friction pressure drop against bore", x_name="bore",
-                              y_name="pressure drop", system=system, height=340)
-        self.dp_chart.add_class("hl-dp-chart")
-        self.dp_chart.figure.layout.yaxis.type = "log"
+        self.bore_chart = BoreChart(6, 4, system=system)
         self.size = widgets.Dropdown(description="size shown")
         self.size.add_class("hl-profile-size")
         self.size.style.description_width = "9em"
@@ -353,7 +461,7 @@ class LineSizingApp(widgets.VBox):
         self.candidates_view = widgets.VBox([style, section_heading("Candidate sizes"), self.message,
                                              self.table, self.reason])
         self.candidates_view.add_class("hl-line-sizing")
-        self.charts_view = widgets.HBox([self.v_chart, self.dp_chart])
+        self.charts_view = widgets.VBox([self.bore_chart])
         self.profile_view = widgets.VBox([section_heading("Profile of one size"), self.size,
                                           self.profile_chart, self.size_heading, self.findings])
         self.profile_view.add_class("hl-line-sizing")
@@ -613,6 +721,8 @@ class LineSizingApp(widgets.VBox):
 
     def _render(self) -> None:
         st = self.study
+        # the bore chart first: its update leaves for the browser before the table's
+        self._render_criteria_charts()
         rows = ls.candidate_rows(st)
         label = st.inputs.duty.label + ": "
         for r, c in zip(rows, st.result.candidates, strict=True):
@@ -623,7 +733,6 @@ class LineSizingApp(widgets.VBox):
         self.table.value = tuple(rows)
         self.reason.value = (f'<span class="hl-reason-text"><b>Recommended:</b> '
                              f"{html.escape(st.result.reason)}</span>")
-        self._render_criteria_charts()
         cands = st.result.candidates
         options = [(f"{c.pipe.label} — {c.verdict.upper()}"
                     + ("  (recommended)" if i == st.result.recommended else ""), c.pipe.nominal)
@@ -631,16 +740,21 @@ class LineSizingApp(widgets.VBox):
         want = self._pinned if self._pinned in [c.pipe.nominal for c in cands] else None
         if want is None and st.result.recommended is not None:
             want = cands[st.result.recommended].pipe.nominal
+        value = want if want is not None else cands[0].pipe.nominal
         self._hold += 1
         try:
-            self.size.options = options
-            self.size.value = want if want is not None else cands[0].pipe.nominal
+            # only what changed, as one message: a new option list redraws the dropdown
+            with self.size.hold_sync():
+                if tuple(tuple(o) for o in self.size.options) != tuple(options):
+                    self.size.options = options
+                if self.size.value != value:
+                    self.size.value = value
         finally:
             self._hold -= 1
         self._show_size()
 
     def _render_criteria_charts(self) -> None:
-        st, sysm = self.study, self.system
+        st = self.study
         cands = st.result.candidates
         D = np.array([c.pipe.Di for c in cands])
         duty = st.inputs.duty
@@ -684,12 +798,8 @@ class LineSizingApp(widgets.VBox):
                    dp[[rec]] if rec is not None else dp[:0], mode="markers", color="#c0392b",
                    extra=dict(marker=dict(size=14, symbol="star"))),
         ]
-        x = list(to_display([lo, hi], "diameter", sysm))
-        vy = list(to_display([0.0, 2.0 * duty.v_max], "velocity", sysm))
-        dpy = to_display([floor, duty.dp_max * 30.0], "pressure_per_length", sysm)
-        _update(self.v_chart, v_series, xaxis_range=x, yaxis_range=vy)
-        _update(self.dp_chart, dp_series, xaxis_range=x,
-                yaxis_range=[math.log10(dpy[0]), math.log10(dpy[1])])
+        self.bore_chart.show(v_series, dp_series, (lo, hi), (0.0, 2.0 * duty.v_max),
+                             (floor, duty.dp_max * 30.0))
 
     def _show_size(self) -> None:
         st = self.study
@@ -697,6 +807,11 @@ class LineSizingApp(widgets.VBox):
         if i is None:
             return
         self.shown = i
+        shown = (st.result, i, self.system)
+        last = self._shown_key
+        if last is not None and last[0] is shown[0] and last[1:] == shown[1:]:
+            return   # the same sizing, size and units: the profile and findings are as shown
+        self._shown_key = shown
         c = st.result.candidates[i]
         profs = st.result.range_profiles[i]
         if profs is None:
@@ -770,7 +885,7 @@ class LineSizingApp(widgets.VBox):
         for p in (self.flow_design, self.flow_min, self.flow_max, self.v_min, self.v_max,
                   self.dp_max, self.length, self.start_elevation, self.end_pressure,
                   self.vapour_margin, self.fluid, self.fittings, self.table, self.batch_table,
-                  self.findings, self.v_chart, self.dp_chart, self.profile_chart, *self.points):
+                  self.findings, self.bore_chart, self.profile_chart, *self.points):
             p.set_system(system)
         if self.study is not None:
             self._render_criteria_charts()
@@ -778,12 +893,13 @@ class LineSizingApp(widgets.VBox):
 
     @classmethod
     def record_figures(cls, sc) -> list:
-        """The three charts as drawn from the scenario itself (not from panel edits), as static
+        """The charts as drawn from the scenario itself (not from panel edits), as static
         ``go.Figure`` copies for the record — so the record's figures match its results."""
         return cls.from_scenario(sc).figures()
 
     def figures(self) -> list:
-        """Static copies (plotly ``go.Figure``) of the three charts, for the record."""
+        """Static copies (plotly ``go.Figure``) of the charts, for the record: velocity and
+        pressure drop against bore (one figure, two panels), then the HGL profile."""
         import plotly.graph_objects as go
 
-        return [go.Figure(c.figure) for c in (self.v_chart, self.dp_chart, self.profile_chart)]
+        return [go.Figure(c.figure) for c in (self.bore_chart, self.profile_chart)]

@@ -51,6 +51,11 @@ def test_line_sizing_notebook_in_the_browser(lab, page, open_and_run, screenshot
     dom.wait_paths_changed(page, V_CHART, old_v)
     assert dom.text(page, TABLE) != old_table
     assert dom.text(page, ".hl-flow-design .hl-error") == ""
+    # one figure, two panels: velocity and pressure drop against bore
+    assert page.locator(f"{V_CHART} .js-plotly-plot").count() == 1
+    assert page.locator(f"{V_CHART} .subplot.xy, {V_CHART} .subplot.x2y2").count() == 2
+    page.locator(V_CHART).scroll_into_view_if_needed()
+    page.screenshot(path=str(artifacts / "line_sizing_bore_chart.png"))
 
     # 3) round trip, median over 10 changes: Enter -> redrawn velocity chart
     samples = []

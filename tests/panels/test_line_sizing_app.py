@@ -39,6 +39,23 @@ def trace(chart, name):
     raise KeyError(name)
 
 
+def v_trace(app, name):
+    """A trace of the velocity panel (axes x, y) of the bore chart."""
+    return _panel_trace(app, name, "x")
+
+
+def dp_trace(app, name):
+    """A trace of the pressure-drop panel (axes x2, y2) of the bore chart."""
+    return _panel_trace(app, name, "x2")
+
+
+def _panel_trace(app, name, xaxis):
+    for t in app.bore_chart.figure.data:
+        if t.name == name and (t.xaxis or "x") == xaxis:
+            return t
+    raise KeyError(name)
+
+
 def test_starts_from_the_scenario(app):
     assert app.flow_design.text == "350 gpm" or app.flow_design.value == pytest.approx(350 * GPM)
     assert app.study.recommended.pipe.nominal == "5"
@@ -53,11 +70,11 @@ def test_starts_from_the_scenario(app):
 
 def test_design_flow_change_updates_table_and_chart(app):
     html_before = app.table.html.value
-    y_before = np.array(trace(app.v_chart, "at design flow").y)
+    y_before = np.array(v_trace(app, "at design flow").y)
     app.flow_design.set_text("400 gpm")
     assert app.message.value == ""
     assert app.table.html.value != html_before
-    y = np.array(trace(app.v_chart, "at design flow").y)        # ft/s on the US display
+    y = np.array(v_trace(app, "at design flow").y)        # ft/s on the US display
     assert not np.allclose(y, y_before)
     bores = np.array([c.pipe.Di for c in app.study.result.candidates])
     V = 400 * GPM / (math.pi / 4 * bores ** 2)                   # Q/A (definition)
@@ -78,7 +95,7 @@ def test_pipe_standard_change_refills_schedules_and_recomputes(app):
 
 
 def test_duty_change_fills_its_criteria_and_changes_verdicts_and_bands(app):
-    band_before = list(trace(app.v_chart, "velocity range (criteria)").y)
+    band_before = list(v_trace(app, "velocity range (criteria)").y)
     verdicts_before = [c.verdict for c in app.study.result.candidates]
     app.duty.value = "gravity_drain"
     d = DUTY_CLASSES["gravity_drain"]                           # common practice, no source
@@ -87,7 +104,7 @@ def test_duty_change_fills_its_criteria_and_changes_verdicts_and_bands(app):
     assert app.dp_max.value == pytest.approx(d.dp_max)
     assert app.study.inputs.duty.key == "gravity_drain"
     assert [c.verdict for c in app.study.result.candidates] != verdicts_before
-    assert list(trace(app.v_chart, "velocity range (criteria)").y) != band_before
+    assert list(v_trace(app, "velocity range (criteria)").y) != band_before
     # an edited criterion is used and labelled as edited
     app.v_max.set_text("1 ft/s")
     assert app.study.inputs.duty.v_max == pytest.approx(0.3048)
@@ -149,10 +166,12 @@ def test_display_switch_shows_si_and_keeps_typed_text(app):
     app.switch.value = "SI"
     assert "[m/s]" in app.table.html.value and "[kPa/100 m]" in app.table.html.value
     assert app.flow_design.text == "350 gpm"
-    y = np.array(trace(app.v_chart, "at design flow").y)
+    y = np.array(v_trace(app, "at design flow").y)
     bores = np.array([c.pipe.Di for c in app.study.result.candidates])
     assert y == pytest.approx(350 * GPM / (math.pi / 4 * bores ** 2), rel=1e-9)  # m/s now
-    assert app.v_chart.figure.layout.xaxis.title.text == "bore [mm]"
+    lay = app.bore_chart.figure.layout
+    assert lay.xaxis.title.text == "bore [mm]" and lay.xaxis2.title.text == "bore [mm]"
+    assert lay.yaxis.title.text == "velocity [m/s]"
 
 
 def test_batch_sizes_the_pasted_list_with_errors_per_row(app):
@@ -176,7 +195,65 @@ def test_figures_are_static_copies(app):
     import plotly.graph_objects as go
 
     figs = app.figures()
-    assert len(figs) == 3 and all(type(f) is go.Figure for f in figs)
+    assert len(figs) == 2 and all(type(f) is go.Figure for f in figs)
+    assert [t.name for t in figs[0].data] == [t.name for t in app.bore_chart.figure.data]
+    assert len(figs[1].data) == len(app.profile_chart.figure.data)
+
+
+def test_bore_chart_holds_velocity_and_pressure_drop_panels(app):
+    """One figure, two panels with a shared bore axis: the same series the two charts had."""
+    fig = app.bore_chart.figure
+    v = [t.name for t in fig.data if (t.xaxis or "x") == "x"]
+    dp = [t.name for t in fig.data if t.xaxis == "x2"]
+    assert v == ["velocity range (criteria)", "within 10% of the limit", "at minimum flow",
+                 "at maximum flow", "at design flow", "recommended"]
+    assert dp == ["pressure-drop limit (criteria)", "within 10% of the limit",
+                  "at design flow", "recommended"]
+    assert all(t.yaxis == "y2" for t in fig.data if t.xaxis == "x2")
+    assert fig.layout.yaxis2.type == "log" and fig.layout.xaxis2.matches == "x"
+    assert [a.text for a in fig.layout.annotations] == ["Velocity against bore",
+                                                        "Friction pressure drop against bore"]
+    assert fig.layout.yaxis2.title.text == "pressure drop [psi/(100 ft)]"
+    # pressure drop per length at design flow: the sizing's own values, in psi/100 ft
+    # (psi 6894.757 Pa and ft 0.3048 m, NIST SP 811)
+    dp_si = np.array([c.dp_per_m for c in app.study.result.candidates])
+    got = np.array(dp_trace(app, "at design flow").y)
+    assert got == pytest.approx(dp_si / 6894.757293168 * 30.48, rel=1e-9)
+    rec = app.study.result.recommended
+    bore_in = app.study.result.candidates[rec].pipe.Di / 0.0254            # NIST SP 811
+    assert list(dp_trace(app, "recommended").x) == pytest.approx([bore_in], rel=1e-12)
+    assert list(v_trace(app, "recommended").x) == pytest.approx([bore_in], rel=1e-12)
+    assert list(fig.layout.xaxis.range) == list(fig.layout.xaxis2.range)
+
+
+def test_a_rerender_sends_only_what_changed(app):
+    """The same inputs again (from the cache) send no chart or dropdown update; a new design
+    flow sends one update to the bore chart, not one per panel."""
+    import ipywidgets as widgets
+
+    app.flow_design.set_text("352 gpm")
+    verdicts = [c.verdict for c in app.study.result.candidates]
+    sent = []
+    orig = widgets.Widget._send
+
+    def spy(self, msg, buffers=None):
+        sent.append((self, msg))
+        return orig(self, msg, buffers)
+
+    widgets.Widget._send = spy
+    try:
+        app.recompute()                                          # same inputs: cached
+        assert app.recomputes == 2 and sent == []
+        app.flow_design.set_text("353 gpm")                      # the same verdicts
+        assert [c.verdict for c in app.study.result.candidates] == verdicts
+        updates = [m for w, m in sent if w is app.bore_chart.figure
+                   and "_py2js_update" in m.get("state", {})
+                   and m["state"]["_py2js_update"]]
+        assert len(updates) == 1
+        assert not any(w is app.size for w, _ in sent)          # same options and value
+        assert any(w is app.profile_chart.figure for w, _ in sent)  # the profile moved
+    finally:
+        widgets.Widget._send = orig
 
 
 # ------------------------------------------------------------------ saving the state
