@@ -12,6 +12,7 @@ import math
 
 import numpy as np
 import pytest
+from sameresults import assert_same_results
 
 from kit import scenario as scn
 from kit.core.drain import OrificeOutlet, PipedOutlet
@@ -295,19 +296,6 @@ def test_docstring_examples_run(module):
 
 
 # ------------------------------------------------------------------ saving the state
-
-def _values(res) -> dict:
-    return {v.key: v.value for v in res.values}
-
-
-def assert_same_results(a, b):
-    """Every reported value of ``a`` equals that of ``b`` (rel 1e-9; inf and nan alike)."""
-    va, vb = _values(a), _values(b)
-    assert va.keys() == vb.keys()
-    for k, x in va.items():
-        y = vb[k]
-        assert x == y or math.isclose(x, y, rel_tol=1e-9) or (math.isnan(x) and math.isnan(y)), k
-
 
 def reloaded(app):
     return scn.loads(scn.dumps(app.to_scenario()))

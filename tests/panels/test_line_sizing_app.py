@@ -12,6 +12,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from sameresults import assert_same_results
 
 from kit import scenario as scn
 from kit.core.criteria import DUTY_CLASSES
@@ -257,19 +258,6 @@ def test_a_rerender_sends_only_what_changed(app):
 
 
 # ------------------------------------------------------------------ saving the state
-
-def _values(res) -> dict:
-    return {v.key: v.value for v in res.values}
-
-
-def assert_same_results(a, b):
-    """Every reported value of ``a`` equals that of ``b`` (rel 1e-9; inf/nan alike)."""
-    va, vb = _values(a), _values(b)
-    assert va.keys() == vb.keys()
-    for k, x in va.items():
-        y = vb[k]
-        assert x == y or math.isclose(x, y, rel_tol=1e-9) or (math.isnan(x) and math.isnan(y)), k
-
 
 def _reloaded(app, sc):
     # the source is kept so the line list named by [batch] file is found beside the scenario

@@ -8,6 +8,7 @@ by the vapour-pressure head from IAPWS-IF97 via iapws.
 import numpy as np
 import pytest
 from iapws import IAPWS97
+from sameresults import assert_same_results
 
 from kit import scenario as scn
 from kit.notebook import scenario_path
@@ -127,19 +128,6 @@ def test_docstring_examples():
 
 
 # ------------------------------------------------------------------ saving the state
-
-def _values(res) -> dict:
-    return {v.key: v.value for v in res.values}
-
-
-def assert_same_results(a, b):
-    """Every reported value of ``a`` equals that of ``b`` (rel 1e-9; nan alike)."""
-    va, vb = _values(a), _values(b)
-    assert va.keys() == vb.keys()
-    for k, x in va.items():
-        y = vb[k]
-        assert x == y or np.isclose(x, y, rtol=1e-9, atol=0) or (np.isnan(x) and np.isnan(y)), k
-
 
 def test_unedited_round_trip_gives_the_same_document_and_results(app, scenario):
     from kit.results import compute
