@@ -1,9 +1,14 @@
 """Panel benchmarks (Python side): a change in the line-sizing app -> recomputed results.
 
 The kit: the app's input cache, cached catalogue pipes and fitting K, charts updated in place
-(one message per figure; velocity and pressure drop are two panels of one figure) and only
-what changed written. The naive approach, in the same run: the same change with every cache
+as plain JSON (:class:`kit.panels.plot_view.PlotView`: one message per figure, only the
+traits that changed; velocity and pressure drop are two panels of one figure) and only what
+changed written. The naive approach, in the same run: the same change with every cache
 cleared and the profile chart's traces rebuilt from nothing.
+
+A second pair compares one bore-chart update as PlotView JSON with the same update made
+through plotly's ``FigureWidget`` property setters in one ``batch_update`` (what the kit did
+before PlotView; plotly validates every property set).
 """
 
 from __future__ import annotations
@@ -17,6 +22,8 @@ def run(report, timeit, repeat):
     import statistics
     import time
 
+    import numpy as np
+
     from kit import scenario as scn
     from kit.core import fittings
     from kit.panels.line_sizing_app import LineSizingApp
@@ -26,8 +33,8 @@ def run(report, timeit, repeat):
     t0 = time.perf_counter()
     app = LineSizingApp.from_scenario(sc)
     build = time.perf_counter() - t0
-    report("line-sizing app: first build (2 FigureWidgets)", build, None, None,
-           "includes plotly and nbformat imports")
+    report("line-sizing app: first build (2 PlotViews)", build, None, None,
+           "includes the plotly and nbformat imports")
 
     def change(i, naive=False):
         if naive:
@@ -35,7 +42,7 @@ def run(report, timeit, repeat):
             ls._bore_arrays.cache_clear()
             fittings._call.cache_clear()
             app._cache.clear()
-            app.profile_chart.figure.data = ()
+            app.profile_chart.view.data = []
             app._shown_key = None
         t = time.perf_counter()
         app.flow_design.set_text(f"{300 + (i % 97) * 0.9:.1f} gpm")
@@ -58,3 +65,47 @@ def run(report, timeit, repeat):
     inp = app.read_inputs()
     report("line-sizing app: profile size change (re-render only)", sizes, None, None,
            f"the sizing itself, not re-run here, costs {timeit(lambda: ls.run(inp), repeat) * 1e3:.1f} ms")
+
+    # one bore-chart update: PlotView JSON against plotly FigureWidget property setters
+    import plotly.graph_objects as go
+    from plotly.subplots import make_subplots
+
+    chart = app.bore_chart
+    v_series, dp_series = chart.series
+    rng = dict(chart._ranges)
+    fig = make_subplots(rows=1, cols=2)
+    for col, series in ((1, v_series), (2, dp_series)):
+        for _ in series:
+            fig.add_trace(go.Scatter(x=[], y=[]), row=1, col=col)
+    fw = go.FigureWidget(fig)
+
+    def scaled(series, k):
+        return [type(s)(s.name, s.x, np.asarray(s.y) * k, s.mode, s.dash, s.color, s.extra)
+                for s in series]
+
+    def plotview(i):
+        k = 1.0 + 1e-3 * (i % 50)
+        t = time.perf_counter()
+        chart.show(scaled(v_series, k), scaled(dp_series, k), rng["x"], rng["v"], rng["dp"])
+        return time.perf_counter() - t
+
+    def figurewidget(i):
+        k = 1.0 + 1e-3 * (i % 50)
+        t = time.perf_counter()
+        with fw.batch_update():
+            for trace, s in zip(fw.data, scaled(v_series, k) + scaled(dp_series, k),
+                                strict=True):
+                trace.x = np.asarray(s.x, dtype=float)
+                trace.y = np.asarray(s.y, dtype=float)
+                trace.name = s.name
+                trace.mode = s.mode
+                trace.line.dash = s.dash
+                trace.line.color = s.color
+                if s.extra:
+                    trace.update(s.extra)
+        return time.perf_counter() - t
+
+    lean = statistics.median(plotview(i) for i in range(n))
+    heavy = statistics.median(figurewidget(i) for i in range(n))
+    report("bore chart: one update as PlotView JSON", lean, None, heavy,
+           "naive: plotly FigureWidget property setters, one batch_update")

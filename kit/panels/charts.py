@@ -1,20 +1,19 @@
-"""Charts: one plotly ``FigureWidget`` per chart, updated in place.
+"""Charts: one :class:`kit.panels.plot_view.PlotView` per chart, updated in place.
 
-Each ``FigureWidget`` carries a ~5 MB JavaScript bundle to the browser and into saved
-widget state, so a chart is built once and its traces are updated with
-``fig.batch_update()`` (one message per update). Data is held in SI; axes are shown in
-the display system of :mod:`kit.units`, and :meth:`Chart.set_system` re-renders from the
-stored SI data. plotly is imported inside the functions that need it.
+A chart is built once; each change sends only the figure JSON that changed, in one message.
+Data is held in SI; axes are shown in the display system of :mod:`kit.units`, and
+:meth:`Chart.set_system` re-renders from the stored SI data. plotly's Python package is
+imported only for :meth:`Chart.to_figure` (the record).
 
 Example
 -------
 >>> import numpy as np
 >>> c = Chart("flow", "head", title="system curve")
 >>> c.set_series([Series("system", np.array([0.0, 0.01]), np.array([20.0, 30.0]))])
->>> c.figure.data[0].y.tolist()
+>>> c.view.data[0]["y"]
 [20.0, 30.0]
 >>> c.set_system("US")
->>> round(float(c.figure.data[0].y[1]), 2)
+>>> round(c.view.data[0]["y"][1], 2)
 98.43
 """
 
@@ -88,6 +87,9 @@ class Series:
 class Chart(widgets.VBox):
     """A chart of SI series against x and y quantity kinds, in the display system.
 
+    Drawn by a :class:`kit.panels.plot_view.PlotView` (the figure as plain JSON; plotly's
+    Python object model is not used on the way, so a change costs little in the kernel).
+
     Parameters
     ----------
     x_kind, y_kind : str
@@ -102,17 +104,20 @@ class Chart(widgets.VBox):
 
     Attributes
     ----------
-    figure : plotly.graph_objects.FigureWidget
-        The one figure, updated in place.
+    view : kit.panels.plot_view.PlotView
+        The one figure in the browser, updated in place.
     series : tuple of Series
         What is shown (SI).
+    ranges : dict
+        Fixed axis ranges in SI (``{"x": (lo, hi), "y": (lo, hi)}``); an axis not given
+        ranges itself to its data.
 
     CSS classes: ``hl-chart`` on the box.
     """
 
     def __init__(self, x_kind: str, y_kind: str, title: str = "", x_name: str | None = None,
                  y_name: str | None = None, system: str = "SI", height: int = 360):
-        import plotly.graph_objects as go
+        from kit.panels.plot_view import PlotView
 
         for k in (x_kind, y_kind):
             if k not in units.KINDS:
@@ -122,60 +127,75 @@ class Chart(widgets.VBox):
         self.y_name = y_name or y_kind.replace("_", " ")
         self.system = check_system(system)
         self.series: tuple[Series, ...] = ()
-        self.figure = go.FigureWidget(layout=dict(
-            title=dict(text=title), height=height, margin=dict(l=60, r=20, t=50, b=50),
-            legend=dict(orientation="h", y=-0.2), template="plotly_white"))
-        super().__init__(children=(self.figure,))
+        self.ranges: dict = {}
+        self.title = title
+        self.height = int(height)
+        self.view = PlotView()
+        super().__init__(children=(self.view,))
         self.add_class("hl-chart")
-        self._axes()
-
-    def _axes(self) -> None:
-        with self.figure.batch_update():
-            self.figure.layout.xaxis.title.text = axis_title(self.x_name, self.x_kind, self.system)
-            self.figure.layout.yaxis.title.text = axis_title(self.y_name, self.y_kind, self.system)
+        self._render()
 
     def set_title(self, title: str) -> None:
         """Change the chart title."""
-        self.figure.layout.title.text = title
-
-    def set_series(self, series) -> None:
-        """Show ``series`` (SI), updating the existing traces in place where the count matches."""
-        self.series = tuple(series)
+        self.title = title
         self._render()
 
-    def _render(self) -> None:
-        import plotly.graph_objects as go
+    def set_series(self, series, *, title: str | None = None, x_range=None,
+                   y_range=None) -> None:
+        """Show ``series`` (SI); optionally a new title and fixed axis ranges (SI), all in
+        one message to the browser."""
+        self.series = tuple(series)
+        if title is not None:
+            self.title = title
+        self._set_ranges(x_range, y_range)
+        self._render()
 
-        fig = self.figure
-        data = [(s, to_display(s.x, self.x_kind, self.system),
-                 to_display(s.y, self.y_kind, self.system)) for s in self.series]
-        if len(fig.data) != len(data):
-            with fig.batch_update():
-                fig.data = ()
-                fig.add_traces([go.Scatter(x=x, y=y, name=s.name, mode=s.mode,
-                                           **_with_line(s))
-                                for s, x, y in data])
-            return
-        with fig.batch_update():
-            for trace, (s, x, y) in zip(fig.data, data, strict=True):
-                trace.x = x
-                trace.y = y
-                trace.name = s.name
-                trace.mode = s.mode
-                trace.line.dash = s.dash
-                trace.line.color = s.color
-                if s.extra:
-                    trace.update(s.extra)
+    def set_ranges(self, x_range=None, y_range=None) -> None:
+        """Fix the axis ranges (SI pairs; None lets that axis range itself)."""
+        self._set_ranges(x_range, y_range)
+        self._render()
+
+    def _set_ranges(self, x_range, y_range) -> None:
+        for key, r in (("x", x_range), ("y", y_range)):
+            if r is not None:
+                self.ranges[key] = (float(r[0]), float(r[1]))
+
+    def figure_json(self) -> dict:
+        """The figure as plotly JSON (data and layout, display units)."""
+        sysm = self.system
+        data = [dict(type="scatter", x=to_display(s.x, self.x_kind, sysm),
+                     y=to_display(s.y, self.y_kind, sysm), name=s.name, mode=s.mode,
+                     **_with_line(s)) for s in self.series]
+        axes = {}
+        for key, kind, name in (("x", self.x_kind, self.x_name), ("y", self.y_kind, self.y_name)):
+            ax = {"title": {"text": axis_title(name, kind, sysm)}}
+            if key in self.ranges:
+                ax["range"] = [float(v) for v in to_display(self.ranges[key], kind, sysm)]
+                ax["autorange"] = False
+            axes[f"{key}axis"] = ax
+        layout = dict(title=dict(text=self.title), height=self.height,
+                      margin=dict(l=60, r=20, t=50, b=50), legend=dict(orientation="h", y=-0.2),
+                      **axes)
+        return {"data": data, "layout": layout}
+
+    def _render(self) -> None:
+        self.view.show(self.figure_json())
+
+    def to_figure(self):
+        """What is shown, as a static ``plotly.graph_objects.Figure`` (for the record)."""
+        return self.view.to_figure()
 
     def set_system(self, system: str) -> None:
         """Re-render axes and traces in ``system`` from the stored SI series."""
         self.system = check_system(system)
-        self._axes()
         self._render()
 
 
 def _with_line(s) -> dict:
-    """The series' extra trace options, with its dash and colour merged into ``line``."""
+    """The series' extra trace options (plotly names; ``line_width`` style allowed), with its
+    dash and colour merged into ``line``; None values left out."""
+    from kit.panels.plot_view import props
+
     extra = dict(s.extra)
     line = {"dash": s.dash, "color": s.color, **dict(extra.pop("line", {}) or {})}
-    return {"line": line, **extra}
+    return props(line=line, **extra)

@@ -910,12 +910,7 @@ class DrainApp(widgets.VBox):
         parts = chart_parts(self.study)
         for chart, (series, x_range, y_range) in zip((self.level_chart, self.flow_chart), parts,
                                                      strict=True):
-            chart.set_series(series)
-            with chart.figure.batch_update():
-                chart.figure.layout.xaxis.range = list(to_display(x_range, chart.x_kind,
-                                                                  self.system))
-                chart.figure.layout.yaxis.range = list(to_display(y_range, chart.y_kind,
-                                                                  self.system))
+            chart.set_series(series, x_range=x_range, y_range=y_range)
 
     # ------------------------------------------------------------------ display system
     def set_system(self, system: str) -> None:
@@ -929,9 +924,7 @@ class DrainApp(widgets.VBox):
 
     def figures(self) -> list:
         """Static copies (plotly ``go.Figure``) of the two charts, for the record."""
-        import plotly.graph_objects as go
-
-        return [go.Figure(c.figure) for c in (self.level_chart, self.flow_chart)]
+        return [c.to_figure() for c in (self.level_chart, self.flow_chart)]
 
 
 def chart_parts(st: td.DrainStudy):

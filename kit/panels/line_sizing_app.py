@@ -131,29 +131,14 @@ _STYLE = """<style>
 </style>"""
 
 
-def _update(chart: Chart, series, **layout) -> None:
-    """Show ``series`` and set layout properties in one message to the browser (one redraw)
-    once the chart has its traces; the first time, traces first, then the layout."""
-    fig = chart.figure
-    if len(fig.data) == len(series):
-        with fig.batch_update():
-            chart.set_series(series)
-            fig.update_layout(**layout)
-    else:
-        chart.set_series(series)
-        with fig.batch_update():
-            fig.update_layout(**layout)
-
-
 class BoreChart(widgets.VBox):
     """Velocity and friction pressure drop against bore: two panels, side by side with a
-    shared bore axis, in ONE plotly ``FigureWidget`` (one redraw per change instead of two).
+    shared bore axis, in ONE figure (one redraw per change instead of two).
 
-    The figure is built whole once (``plotly.subplots.make_subplots``, every trace in place,
-    then wrapped in one ``FigureWidget``); :meth:`show` updates the traces and the axis
-    ranges in place in one ``batch_update`` (plotly sends only what changed, nothing when
-    nothing did). Each panel has its own legend below it. The pressure-drop axis is
-    logarithmic.
+    The layout (two subplots, titles, legends) is made once with
+    ``plotly.subplots.make_subplots`` and kept as JSON; :meth:`show` sends the traces and
+    the axis ranges to a :class:`kit.panels.plot_view.PlotView` (only what changed, in one
+    message). Each panel has its own legend below it. The pressure-drop axis is logarithmic.
 
     Parameters
     ----------
@@ -166,7 +151,7 @@ class BoreChart(widgets.VBox):
 
     Attributes
     ----------
-    figure : plotly.graph_objects.FigureWidget
+    view : kit.panels.plot_view.PlotView
         Traces ``0 .. n_velocity-1`` on the velocity panel (axes x, y), the others on the
         pressure-drop panel (axes x2, y2).
     series : tuple
@@ -178,8 +163,9 @@ class BoreChart(widgets.VBox):
               ("pressure_per_length", "pressure drop", "Friction pressure drop against bore"))
 
     def __init__(self, n_velocity: int, n_dp: int, system: str = "SI", height: int = 480):
-        import plotly.graph_objects as go
         from plotly.subplots import make_subplots
+
+        from kit.panels.plot_view import PlotView
 
         self.system = check_system(system)
         self.counts = (int(n_velocity), int(n_dp))
@@ -187,27 +173,26 @@ class BoreChart(widgets.VBox):
         self._ranges: dict = {}
         fig = make_subplots(rows=1, cols=2, subplot_titles=[p[2] for p in self.PANELS],
                             horizontal_spacing=0.1)
-        for col, n in enumerate(self.counts, start=1):
-            for _ in range(n):
-                fig.add_trace(go.Scatter(x=[], y=[], legend="legend" if col == 1 else "legend2"),
-                              row=1, col=col)
         fig.update_layout(
-            height=height, margin=dict(l=60, r=20, t=50, b=150), template="plotly_white",
+            height=height, margin=dict(l=60, r=20, t=50, b=150),
             legend=dict(orientation="v", x=0.0, xanchor="left", y=-0.2, yanchor="top",
                         xref="paper", yref="paper"),
             legend2=dict(orientation="v", x=0.56, xanchor="left", y=-0.2, yanchor="top",
                          xref="paper", yref="paper"),
             xaxis2=dict(matches="x"), yaxis2=dict(type="log"))
-        self.figure = go.FigureWidget(fig)
-        super().__init__(children=(self.figure,))
+        self._base_layout = fig.to_plotly_json()["layout"]
+        self._base_layout.pop("template", None)
+        self.view = PlotView()
+        super().__init__(children=(self.view,))
         for css in ("hl-chart", "hl-bore-chart", "hl-velocity-chart", "hl-dp-chart"):
             self.add_class(css)
         self._render()
 
     def panel_traces(self, panel: int) -> tuple:
-        """The traces of panel 0 (velocity) or 1 (pressure drop)."""
+        """The trace dicts (display units) of panel 0 (velocity) or 1 (pressure drop)."""
         n = self.counts[0]
-        return tuple(self.figure.data[:n] if panel == 0 else self.figure.data[n:])
+        data = self.view.data
+        return tuple(data[:n] if panel == 0 else data[n:])
 
     def show(self, v_series, dp_series, x_range, v_range, dp_range) -> None:
         """Show the series (SI) of each panel with the bore range ``x_range`` [m], the velocity
@@ -225,32 +210,45 @@ class BoreChart(widgets.VBox):
         self.system = check_system(system)
         self._render()
 
-    def _render(self) -> None:
-        sysm, fig = self.system, self.figure
-        layout = {"xaxis_title_text": axis_title("bore", "diameter", sysm),
-                  "xaxis2_title_text": axis_title("bore", "diameter", sysm),
-                  "yaxis_title_text": axis_title(self.PANELS[0][1], self.PANELS[0][0], sysm),
-                  "yaxis2_title_text": axis_title(self.PANELS[1][1], self.PANELS[1][0], sysm)}
+    def figure_json(self) -> dict:
+        """The figure as plotly JSON (display units)."""
+        from kit.panels.plot_view import props
+
+        sysm = self.system
+        layout = {k: dict(v) if isinstance(v, dict) else v for k, v in self._base_layout.items()}
+        titles = {"xaxis": axis_title("bore", "diameter", sysm),
+                  "xaxis2": axis_title("bore", "diameter", sysm),
+                  "yaxis": axis_title(self.PANELS[0][1], self.PANELS[0][0], sysm),
+                  "yaxis2": axis_title(self.PANELS[1][1], self.PANELS[1][0], sysm)}
+        for ax, text in titles.items():
+            layout[ax] = {**layout.get(ax, {}), "title": {"text": text}}
         r = self._ranges
+        data = []
         if r:
             x = [float(a) for a in to_display(r["x"], "diameter", sysm)]
             dpy = to_display(r["dp"], "pressure_per_length", sysm)
-            layout.update(xaxis_range=x, xaxis2_range=x,
-                          yaxis_range=[float(a) for a in to_display(r["v"], "velocity", sysm)],
-                          yaxis2_range=[math.log10(dpy[0]), math.log10(dpy[1])])
-        with fig.batch_update():
-            for panel, series in enumerate(self.series if r else ()):
+            for ax, rng in (("xaxis", x), ("xaxis2", x),
+                            ("yaxis", [float(a) for a in to_display(r["v"], "velocity", sysm)]),
+                            ("yaxis2", [math.log10(dpy[0]), math.log10(dpy[1])])):
+                layout[ax].update(range=rng, autorange=False)
+            for panel, series in enumerate(self.series):
                 kind = self.PANELS[panel][0]
-                for trace, s in zip(self.panel_traces(panel), series, strict=True):
-                    trace.x = to_display(s.x, "diameter", sysm)
-                    trace.y = to_display(s.y, kind, sysm)
-                    trace.name = s.name
-                    trace.mode = s.mode
-                    trace.line.dash = s.dash
-                    trace.line.color = s.color
-                    if s.extra:
-                        trace.update(s.extra)
-            fig.update_layout(**layout)
+                axes = ({"xaxis": "x", "yaxis": "y", "legend": "legend"} if panel == 0 else
+                        {"xaxis": "x2", "yaxis": "y2", "legend": "legend2"})
+                for s in series:
+                    extra = dict(s.extra)
+                    line = {"dash": s.dash, "color": s.color, **dict(extra.pop("line", {}) or {})}
+                    data.append(props(type="scatter", x=to_display(s.x, "diameter", sysm),
+                                      y=to_display(s.y, kind, sysm), name=s.name, mode=s.mode,
+                                      line=line, **axes, **extra))
+        return {"data": data, "layout": layout}
+
+    def _render(self) -> None:
+        self.view.show(self.figure_json())
+
+    def to_figure(self):
+        """What is shown, as a static ``plotly.graph_objects.Figure`` (for the record)."""
+        return self.view.to_figure()
 
 
 class _PointRow(widgets.HBox):
@@ -326,6 +324,7 @@ class LineSizingApp(widgets.VBox):
         self._cache: dict = {}
         self._shown_key: tuple | None = None   # (result, index, system) the profile shows
         self._hold = 0
+        self._bore_axis: tuple[float, float] | None = None
         self.recomputes = 0
 
         def qf(kind, label, value, css, **kw):
@@ -758,7 +757,7 @@ class LineSizingApp(widgets.VBox):
         cands = st.result.candidates
         D = np.array([c.pipe.Di for c in cands])
         duty = st.inputs.duty
-        lo, hi = float(D.min()) * 0.92, float(D.max()) * 1.05
+        lo, hi = self._bore_range(D)
         box_x = np.array([lo, hi, hi, lo, lo])
         V = np.array([c.velocity for c in cands])
         top = 1.0 - MARGINAL_FRACTION
@@ -801,6 +800,26 @@ class LineSizingApp(widgets.VBox):
         self.bore_chart.show(v_series, dp_series, (lo, hi), (0.0, 2.0 * duty.v_max),
                              (floor, duty.dp_max * 30.0))
 
+    def _bore_range(self, D) -> tuple[float, float]:
+        """The bore axis range [m]: kept while it holds every candidate and they span at least
+        half of it; otherwise one schedule size wider than the candidates at each end (8 %
+        and 5 % margins). So a size entering or leaving the candidates at either end (the
+        set follows the design flow) does not move the axis, and a flow change redraws the
+        traces only."""
+        d_lo, d_hi = float(D.min()), float(D.max())
+        cur = self._bore_axis
+        if cur is not None and cur[0] <= 0.92 * d_lo and 1.05 * d_hi <= cur[1] \
+                and (d_hi - d_lo) >= 0.5 * (cur[1] - cur[0]):
+            return cur
+        inp = self.study.inputs
+        every = sorted(p.Di for p in ls.candidate_pipes(inp.standard, inp.schedule, inp.material,
+                                                        inp.condition, self.fixed_sizes))
+        below = [d for d in every if d < d_lo]
+        above = [d for d in every if d > d_hi]
+        self._bore_axis = (0.92 * (below[-1] if below else d_lo),
+                           1.05 * (above[0] if above else d_hi))
+        return self._bore_axis
+
     def _show_size(self) -> None:
         st = self.study
         i = st.index_of(self.size.value)
@@ -841,8 +860,8 @@ class LineSizingApp(widgets.VBox):
                              extra=dict(marker=dict(size=13, symbol="x"),
                                         text=[f"lowest p: {low.name}"],
                                         textposition="top center")))
-        _update(self.profile_chart, series,
-                title_text=f"Hydraulic grade along the route: {c.pipe.label}")
+        self.profile_chart.set_series(series,
+                                      title=f"Hydraulic grade along the route: {c.pipe.label}")
         where = "design" if low_prof is pdes else ("minimum" if low_prof is pmin else "maximum")
         p_text = units.fmt_pressure(low.p, self.system, gauge=True, p_baro=self.p_baro)
         self.size_heading.value = (
@@ -900,6 +919,4 @@ class LineSizingApp(widgets.VBox):
     def figures(self) -> list:
         """Static copies (plotly ``go.Figure``) of the charts, for the record: velocity and
         pressure drop against bore (one figure, two panels), then the HGL profile."""
-        import plotly.graph_objects as go
-
-        return [go.Figure(c.figure) for c in (self.bore_chart, self.profile_chart)]
+        return [c.to_figure() for c in (self.bore_chart, self.profile_chart)]

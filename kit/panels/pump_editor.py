@@ -42,6 +42,7 @@ from kit.errors import InputError
 from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
 from kit.panels.charts import to_display
 from kit.panels.fields import QuantityField
+from kit.panels.plot_view import PlotView
 
 __all__ = ["PumpEditor", "PointRow", "FLOW_UNITS", "HEAD_UNITS", "COLUMNS", "parse_points",
            "pump_doc"]
@@ -185,8 +186,9 @@ class PumpEditor(Panel):
     count : ipywidgets.BoundedIntText
     csv : ipywidgets.Textarea
         Pasted points; ``read_csv`` (a button) replaces the table with them.
-    figure : plotly FigureWidget
-        Points and fitted curves (head and NPSHr on the left axis, efficiency on the right).
+    figure : plotly.graph_objects.Figure
+        Points and fitted curves, as drawn by ``plot`` (a
+        :class:`~kit.panels.plot_view.PlotView`) (head and NPSHr on the left axis, efficiency on the right).
     report : ipywidgets.HTML
         The fit report (CSS ``hl-fit-report``).
 
@@ -245,16 +247,16 @@ class PumpEditor(Panel):
         self.csv.add_class("hl-csv")
         self.read_csv = widgets.Button(description="Read pasted points")
         self.read_csv.add_class("hl-read-csv")
-        # built as a plain Figure and wrapped once its first traces are in (see
-        # kit.panels.pump_selection_app: a FigureWidget not yet shown keeps only the last
-        # add-trace message)
+        # a plain Figure (the model the code edits), shown by a PlotView (the figure as
+        # JSON in the browser; see kit.panels.plot_view)
         self.figure = go.Figure(layout=dict(
             height=300, width=520, margin=dict(l=60, r=60, t=40, b=40), template="plotly_white",
             title=dict(text="datasheet points and fitted curves"),
             legend=dict(orientation="h", y=-0.25),
             yaxis2=dict(overlaying="y", side="right", range=[0, 100], autorange=False,
                         tick0=0, dtick=20, title=dict(text="efficiency [%]"), showgrid=False)))
-        fig_box = widgets.VBox([])
+        self.plot = PlotView()
+        fig_box = widgets.VBox([self.plot])
         fig_box.add_class("hl-fit-chart")
         self.report = widgets.HTML("")
         self.report.add_class("hl-fit-report")
@@ -269,8 +271,6 @@ class PumpEditor(Panel):
         self._units = ("m3/h", "m")
         self.load(doc or {"name": "new pump", "speed": "1450 rpm", "impeller": "250 mm",
                           "flow": ["0 m3/h", "", "", ""], "head": ["", "", "", ""]})
-        self.figure = go.FigureWidget(self.figure)
-        fig_box.children = (self.figure,)
         self._wire()
 
     # ------------------------------------------------------------------ wiring
@@ -490,6 +490,7 @@ class PumpEditor(Panel):
             fig.layout.xaxis.title.text = f"flow [{units.display_unit('flow', sysm)}]".replace(
                 "m**3/h", "m³/h")
             fig.layout.yaxis.title.text = f"head, NPSHr [{units.display_unit('head', sysm)}]"
+        self.plot.show(fig)
         self.report.value = self._report_html(p)
 
     def _report_html(self, p) -> str:

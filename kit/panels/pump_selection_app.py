@@ -43,6 +43,7 @@ from kit.panels.charts import to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
+from kit.panels.plot_view import PlotView
 from kit.panels.pump_editor import PumpEditor
 from kit.panels.scenario_text import SaveRow, default_save_path
 from kit.panels.tables import Column, results_table_html, unit_label
@@ -183,8 +184,9 @@ class PumpSelectionApp(widgets.VBox):
     choice : ipywidgets.Dropdown
         The candidate the editor shows (CSS ``hl-pump-choice``).
     editor : PumpEditor
-    figure : plotly FigureWidget
-        Head and NPSH charts, one figure (two rows on a shared flow axis).
+    figure : plotly.graph_objects.Figure
+        Head and NPSH charts, one figure (two rows on a shared flow axis), as drawn by
+        ``plot`` (a :class:`~kit.panels.plot_view.PlotView`).
     message : ipywidgets.HTML
         Study-level message (CSS ``hl-error``): what was refused, with the kit's words.
     """
@@ -217,10 +219,8 @@ class PumpSelectionApp(widgets.VBox):
         self.message = error_widget()
         self.style = widgets.HTML(_STYLE)
 
-        # The figure is built whole (traces, data, layout) before it becomes a FigureWidget:
-        # a FigureWidget not yet shown keeps only the last of several add-trace messages, so
-        # traces added one by one reach the browser without their names and later restyles
-        # miss. Built whole, everything is in the widget's initial state.
+        # The figure is a plain plotly Figure (the model the code edits), shown by a
+        # PlotView: its JSON goes to the browser after each edit (see kit.panels.plot_view).
         fig = make_subplots(
             rows=2, cols=1, shared_xaxes=True, row_heights=[0.64, 0.36], vertical_spacing=0.07,
             subplot_titles=("pump curves on the system band", "NPSH available and required"))
@@ -229,9 +229,9 @@ class PumpSelectionApp(widgets.VBox):
                           legend=dict(orientation="h", x=0.0, y=-0.09, yanchor="top"),
                           hovermode="closest")
         self.figure = fig
+        self.plot = PlotView()
         self._build_traces(go)
         self._draw()
-        self.figure = go.FigureWidget(fig)
         self.candidates = widgets.HTML("")
         self.candidates.add_class("hl-candidates")
         self.points_table = widgets.HTML("")
@@ -245,7 +245,7 @@ class PumpSelectionApp(widgets.VBox):
             widgets.HTML("<b>Liquid</b>"), self.t_min, self.t_max,
             widgets.HTML("<b>Candidate pumps</b>"), self.choice, self.editor, self.message])
         self.inputs.add_class("hl-pump-inputs")
-        self.chart = widgets.VBox([self.figure])
+        self.chart = widgets.VBox([self.plot])
         self.chart.add_class("hl-pump-chart")
         self.comparison = widgets.VBox([
             self.style, widgets.HTML("<b>Candidates over the band</b>"), self.candidates,
@@ -435,6 +435,7 @@ class PumpSelectionApp(widgets.VBox):
             fig.layout.xaxis2.range = fig.layout.xaxis.range
             fig.layout.yaxis.range = [0, _nice_top(float(fh(1.08 * h_top)))]
             fig.layout.yaxis2.range = [0, _nice_top(float(fh(1.15 * n_top)))]
+        self.plot.show(fig)
 
     def _hover(self, name: str, p) -> str:
         sysm = self.display

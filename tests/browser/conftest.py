@@ -336,6 +336,31 @@ class Dom:
         t1 = page.wait_for_function(changed, arg=arg, polling="raf", timeout=30_000).json_value()
         return t1 - t0
 
+    #: Arms a one-shot listener on the element ``sel``: the ``timeStamp`` of its next Enter
+    #: keydown (when the browser received the key) goes to ``window.__hlKeyT``.
+    ARM_ENTER = """(sel) => {
+  window.__hlKeyT = null;
+  document.querySelector(sel).addEventListener('keydown', (e) => {
+    if (e.key === 'Enter') window.__hlKeyT = e.timeStamp;
+  }, {once: true, capture: true});
+}"""
+
+    @classmethod
+    def timed_enter(cls, page, sel: str, changed: str, arg) -> tuple[float, float]:
+        """Press Enter in the input ``sel`` and wait for ``changed`` (given ``arg``, polled
+        each animation frame) to return the browser clock. Returns milliseconds
+        ``(from the key event, from the driver's call)``: the first is the page's own
+        latency, from the moment the browser received the key (``KeyboardEvent.timeStamp``)
+        to the frame with the change; the second adds the test driver's time to deliver
+        the key (Playwright's protocol round trips, 10-40 ms here)."""
+        page.evaluate(cls.ARM_ENTER, sel)
+        t0 = page.evaluate("performance.now()")
+        page.locator(sel).first.press("Enter")
+        t1 = page.wait_for_function(changed, arg=arg, polling="raf", timeout=30_000).json_value()
+        t_key = page.evaluate("window.__hlKeyT")
+        assert t_key is not None and t0 <= t_key <= t1, (t0, t_key, t1)
+        return t1 - t_key, t1 - t0
+
     @staticmethod
     def latency_summary(samples, **extra) -> dict:
         """Median, min, max and the samples [ms], rounded to 0.1 ms, then ``extra``."""

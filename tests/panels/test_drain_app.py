@@ -75,25 +75,25 @@ def test_times_table_and_charts_show_both_outlets(app):
     assert rows[-1]["time"] == pytest.approx(app.study.result.total_time)
     assert rows[-1]["saved"] == pytest.approx(rows[-1]["time"] - rows[-1]["compare_time"])
     assert "time, what-if [min]" in app.times.html.value
-    names = [t.name for t in app.level_chart.figure.data]
+    names = [t.name for t in app.level_chart.to_figure().data]
     assert names == ["as given: line 'dump line'", "what-if: NPS 3 dump line", "target level"]
-    assert len(app.flow_chart.figure.data) == 2
+    assert len(app.flow_chart.to_figure().data) == 2
     # fixed axes: time to 1.05 × the longer drain [min], level over the tank's height [m]
-    x = app.level_chart.figure.layout.xaxis.range
+    x = app.level_chart.to_figure().layout.xaxis.range
     assert x[1] == pytest.approx(1.05 * app.study.result.total_time / 60)
-    assert app.level_chart.figure.layout.yaxis.range[1] == pytest.approx(app.study.tank.h_max)
+    assert app.level_chart.to_figure().layout.yaxis.range[1] == pytest.approx(app.study.tank.h_max)
     assert "The what-if saves" in app.summary.value
 
 
 def test_smaller_pipe_drains_slower_and_redraws(app):
-    old_x = np.array(app.level_chart.figure.data[0].x)
+    old_x = np.array(app.level_chart.to_figure().data[0].x)
     old_html = app.times.html.value
     t_old = app.study.result.total_time
     app.outlet.pipe.nominal.value = "1-1/2"
     assert app.study.outlet.line.segments[0].pipe.nominal == "1-1/2"
     assert app.study.result.total_time > 1.5 * t_old
     assert app.times.html.value != old_html
-    assert not np.array_equal(np.array(app.level_chart.figure.data[0].x), old_x)
+    assert not np.array_equal(np.array(app.level_chart.to_figure().data[0].x), old_x)
     # the what-if stays NPS 3 and keeps its label
     assert app.study.compare.label == "NPS 3 dump line"
     # the line keeps the scenario's three segments, stations and fittings' places
@@ -110,7 +110,7 @@ def test_whatif_nominal_change_and_none(app):
     app.whatif_nominal.value = ""
     assert app.study.compare is None
     assert "compare_time" not in app.times.value[0]
-    assert len(app.level_chart.figure.data) == 2      # one drain and the target line
+    assert len(app.level_chart.to_figure().data) == 2      # one drain and the target line
 
 
 def test_orifice_app_equals_torricelli_and_whatif_scales_with_area():
@@ -213,8 +213,8 @@ def test_display_system_us(app):
     app.switch.value = "US"
     assert "[ft]" in app.times.html.value
     assert "gpm" in app.summary.value
-    assert app.level_chart.figure.layout.yaxis.title.text == "level [ft]"
-    assert app.level_chart.figure.layout.yaxis.range[1] == pytest.approx(
+    assert app.level_chart.to_figure().layout.yaxis.title.text == "level [ft]"
+    assert app.level_chart.to_figure().layout.yaxis.range[1] == pytest.approx(
         app.study.tank.h_max / 0.3048)     # NIST SP 811
 
 

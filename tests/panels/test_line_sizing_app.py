@@ -34,7 +34,7 @@ def app(sc):
 
 
 def trace(chart, name):
-    for t in chart.figure.data:
+    for t in chart.to_figure().data:
         if t.name == name:
             return t
     raise KeyError(name)
@@ -51,7 +51,7 @@ def dp_trace(app, name):
 
 
 def _panel_trace(app, name, xaxis):
-    for t in app.bore_chart.figure.data:
+    for t in app.bore_chart.to_figure().data:
         if t.name == name and (t.xaxis or "x") == xaxis:
             return t
     raise KeyError(name)
@@ -139,9 +139,9 @@ def test_profile_size_dropdown_changes_profile_and_findings_without_recomputing(
     assert list(trace(app.profile_chart, "HGL, design flow").y) != hgl5
     assert all("NPS 8" in f.subject for f in app.findings.value)
     assert "NPS 8" in app.size_heading.value
-    marker = [t for t in app.profile_chart.figure.data if t.name.startswith("lowest pressure")]
+    marker = [t for t in app.profile_chart.to_figure().data if t.name.startswith("lowest pressure")]
     assert marker and "pipe bridge" in marker[0].name            # the bridge runs under vacuum
-    assert any(t.name == "vapour-pressure line" for t in app.profile_chart.figure.data)
+    assert any(t.name == "vapour-pressure line" for t in app.profile_chart.to_figure().data)
     # the chosen size is kept across a flow change while it is still a candidate
     app.flow_design.set_text("340 gpm")
     assert app.size.value == "8"
@@ -170,7 +170,7 @@ def test_display_switch_shows_si_and_keeps_typed_text(app):
     y = np.array(v_trace(app, "at design flow").y)
     bores = np.array([c.pipe.Di for c in app.study.result.candidates])
     assert y == pytest.approx(350 * GPM / (math.pi / 4 * bores ** 2), rel=1e-9)  # m/s now
-    lay = app.bore_chart.figure.layout
+    lay = app.bore_chart.to_figure().layout
     assert lay.xaxis.title.text == "bore [mm]" and lay.xaxis2.title.text == "bore [mm]"
     assert lay.yaxis.title.text == "velocity [m/s]"
 
@@ -197,13 +197,13 @@ def test_figures_are_static_copies(app):
 
     figs = app.figures()
     assert len(figs) == 2 and all(type(f) is go.Figure for f in figs)
-    assert [t.name for t in figs[0].data] == [t.name for t in app.bore_chart.figure.data]
-    assert len(figs[1].data) == len(app.profile_chart.figure.data)
+    assert [t.name for t in figs[0].data] == [t.name for t in app.bore_chart.to_figure().data]
+    assert len(figs[1].data) == len(app.profile_chart.to_figure().data)
 
 
 def test_bore_chart_holds_velocity_and_pressure_drop_panels(app):
     """One figure, two panels with a shared bore axis: the same series the two charts had."""
-    fig = app.bore_chart.figure
+    fig = app.bore_chart.to_figure()
     v = [t.name for t in fig.data if (t.xaxis or "x") == "x"]
     dp = [t.name for t in fig.data if t.xaxis == "x2"]
     assert v == ["velocity range (criteria)", "within 10% of the limit", "at minimum flow",
@@ -247,12 +247,10 @@ def test_a_rerender_sends_only_what_changed(app):
         assert app.recomputes == 2 and sent == []
         app.flow_design.set_text("353 gpm")                      # the same verdicts
         assert [c.verdict for c in app.study.result.candidates] == verdicts
-        updates = [m for w, m in sent if w is app.bore_chart.figure
-                   and "_py2js_update" in m.get("state", {})
-                   and m["state"]["_py2js_update"]]
-        assert len(updates) == 1
+        updates = [m for w, m in sent if w is app.bore_chart.view]
+        assert len(updates) == 1 and set(updates[0]["state"]) == {"data"}   # ranges unchanged
         assert not any(w is app.size for w, _ in sent)          # same options and value
-        assert any(w is app.profile_chart.figure for w, _ in sent)  # the profile moved
+        assert any(w is app.profile_chart.view for w, _ in sent)  # the profile moved
     finally:
         widgets.Widget._send = orig
 

@@ -345,12 +345,12 @@ def test_display_switch_re_renders_without_losing_input():
     assert "150.0 gpm" in q.echo.value
     assert "9.843 in" in p.info.value  # 250 mm / 25.4 mm (NIST SP 811)
     assert "°F" in f.info.value
-    assert chart.figure.layout.yaxis.title.text == "head [ft]"
-    assert float(chart.figure.data[0].y[1]) == pytest.approx(20.0 / FOOT)
+    assert chart.to_figure().layout.yaxis.title.text == "head [ft]"
+    assert float(chart.to_figure().data[0].y[1]) == pytest.approx(20.0 / FOOT)
     assert "3.28" in table.html.value  # 1 m/s = 3.281 ft/s (NIST SP 811)
     sw.value = "SI"
     assert "34.07 m³/h" in q.echo.value
-    assert chart.figure.layout.yaxis.title.text == "head [m]"
+    assert chart.to_figure().layout.yaxis.title.text == "head [m]"
 
 
 def test_display_switch_refuses_unknown_system():
@@ -360,23 +360,66 @@ def test_display_switch_refuses_unknown_system():
 
 # ------------------------------------------------------------------ charts
 
-def test_chart_updates_one_figure_in_place():
+def test_chart_updates_one_view_in_place():
     c = Chart("flow", "head", title="system")
-    fig = c.figure
+    view = c.view
     c.set_series([Series("a", [0.0, 0.01], [1.0, 2.0]), Series("b", [0.0], [3.0], mode="markers")])
-    uid = fig.data[0].uid
     c.set_series([Series("a", [0.0, 0.02], [1.0, 5.0]), Series("b", [0.01], [4.0], mode="markers")])
-    assert c.figure is fig and fig.data[0].uid == uid
-    assert fig.data[0].x.tolist() == pytest.approx([0.0, 72.0])  # 0.02 m³/s = 72 m³/h (definition)
+    assert c.view is view and c.children == (view,)
+    fig = c.to_figure()
+    assert list(fig.data[0].x) == pytest.approx([0.0, 72.0])  # 0.02 m³/s = 72 m³/h (definition)
     assert fig.layout.xaxis.title.text == "flow [m³/h]"
+    assert fig.data[1].mode == "markers" and fig.layout.title.text == "system"
     c.set_series([Series("a", [0.0], [1.0])])
-    assert len(fig.data) == 1
+    assert len(c.to_figure().data) == 1
+
+
+def test_chart_sends_only_what_changed():
+    """The same series again send nothing; new data send the traces only, not the layout."""
+    import ipywidgets as widgets
+
+    c = Chart("flow", "head", title="system")
+    c.set_series([Series("a", [0.0, 0.01], [1.0, 2.0])], x_range=(0.0, 0.02))
+    sent = []
+    orig = widgets.Widget._send
+
+    def spy(self, msg, buffers=None):
+        sent.append((self, msg))
+        return orig(self, msg, buffers)
+
+    widgets.Widget._send = spy
+    try:
+        c.set_series([Series("a", [0.0, 0.01], [1.0, 2.0])])
+        assert sent == []
+        c.set_series([Series("a", [0.0, 0.01], [1.0, 2.5])])
+        states = [m["state"] for w, m in sent if w is c.view]
+        assert len(states) == 1 and set(states[0]) == {"data"}
+    finally:
+        widgets.Widget._send = orig
+    assert c.to_figure().layout.xaxis.range == pytest.approx((0.0, 72.0))
+
+
+def test_plot_view_json_is_plain_and_finite():
+    """numpy arrays become lists, NaN and infinities null (plotly draws a gap), and the
+    plotly.js library is one widget for every view."""
+    from kit.panels.plot_view import PlotView, plotly_library
+
+    v = PlotView()
+    v.show(data=[{"type": "scatter", "x": np.array([0.0, 1.0, 2.0]),
+                  "y": np.array([1.0, np.nan, np.inf])}])
+    assert v.data[0]["x"] == [0.0, 1.0, 2.0] and v.data[0]["y"] == [1.0, None, None]
+    assert v.library is plotly_library() is PlotView().library
+    assert "Plotly" in v.library.source[-2000:] and v.library.version
+    assert v.figure_template["layout"]["plot_bgcolor"] == "white"   # plotly_white
+    import json
+
+    json.dumps(v.data, allow_nan=False)    # raises if anything non-finite remained
 
 
 def test_chart_temperature_axis_is_affine():
     c = Chart("temperature", "density", system="US")
     c.set_series([Series("rho", [273.15, 373.15], [999.8, 958.4])])
-    assert c.figure.data[0].x.tolist() == pytest.approx([32.0, 212.0])  # NIST SP 811
+    assert list(c.to_figure().data[0].x) == pytest.approx([32.0, 212.0])  # NIST SP 811
 
 
 # ------------------------------------------------------------------ findings and tables

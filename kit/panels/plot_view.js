@@ -1,0 +1,209 @@
+// PlotView: draws a plotly figure held as plain JSON traits (data, figure_layout, figure_template,
+// plot_config)
+// with Plotly.react, and nothing goes back to the kernel.
+//
+// plotly.js itself comes once per page from the kernel's PlotlyLibrary widget (trait
+// `source`), found through this model's `library` reference; a page that already has
+// window.Plotly uses it.
+//
+// Draws are queued, one figure per animation frame: when one change redraws several charts,
+// the first is painted before the next is drawn (a long chain of redraws would otherwise
+// hold every chart back until the last one is done). A chart with no size (hidden, not yet
+// attached) is drawn once it gets one. The figure div's data-last-draw attribute says how the
+// last draw was made: "new", "react" or "paths" (the fast path below).
+
+const LOADING = "__headlinePlotlyLoading";
+
+function plotlyFor(model) {
+  if (globalThis.Plotly && globalThis.Plotly.react) {
+    return Promise.resolve(globalThis.Plotly);
+  }
+  if (!globalThis[LOADING]) {
+    globalThis[LOADING] = (async () => {
+      const ref = model.get("library") || "";
+      const id = ref.startsWith("IPY_MODEL_") ? ref.slice("IPY_MODEL_".length) : ref;
+      let lib = null;
+      for (let i = 0; i < 100 && lib === null; i++) {
+        try {
+          lib = await model.widget_manager.get_model(id);
+        } catch (err) {
+          await new Promise((r) => setTimeout(r, 50));
+        }
+      }
+      if (lib === null) throw new Error("the plotly.js library widget was not found");
+      const source = lib.get("source");
+      if (!source) throw new Error("the plotly.js library widget holds no source");
+      new Function(source).call(globalThis);
+      if (!(globalThis.Plotly && globalThis.Plotly.react)) {
+        throw new Error("plotly.js did not load");
+      }
+      return globalThis.Plotly;
+    })();
+    globalThis[LOADING].catch(() => { delete globalThis[LOADING]; });
+  }
+  return globalThis[LOADING];
+}
+
+// Diagnostics: when the page holds an array `window.headlinePlotLog`, every change and
+// draw is logged into it as [performance.now(), what, chart id].
+function logEvent(what, id) {
+  const log = globalThis.headlinePlotLog;
+  if (Array.isArray(log)) log.push([performance.now(), what, id]);
+}
+
+// One draw at a time, in the order the changes arrived, with frames between draws. The
+// queue is the page's, not this module's: the widget framework evaluates this module once
+// per chart, so module-level state would give each chart a queue of its own.
+const Q = (globalThis.__headlinePlotQueue ||= { queue: [], pumping: false });
+const queue = Q.queue;
+
+function schedule(view) {
+  if (!queue.includes(view)) queue.push(view);
+  if (!Q.pumping) {
+    Q.pumping = true;
+    queueMicrotask(pump);   // the first draw at once, before the messages behind it
+  }
+}
+
+async function pump() {
+  const view = queue.shift();
+  if (view) {
+    try {
+      await view.draw();
+    } catch (err) {
+      view.fail(err);
+    }
+  }
+  if (queue.length) {
+    // let the browser paint what was just drawn before the next figure: two frames, as
+    // the fast path's paths are written in a frame callback of their own (d3 transition)
+    requestAnimationFrame(() => requestAnimationFrame(() => setTimeout(pump, 0)));
+  } else {
+    Q.pumping = false;
+  }
+}
+
+// The fast path: when only the x and y arrays of scatter traces changed and every axis has
+// a fixed range, Plotly.animate with redraw: false moves the traces' paths and leaves the
+// axes, legends and annotations as drawn (about a quarter of a full Plotly.react of the
+// line-sizing bore chart in JupyterLab). Anything else goes through Plotly.react.
+function withoutXY(trace) {
+  const rest = Object.assign({}, trace);
+  delete rest.x;
+  delete rest.y;
+  return JSON.stringify(rest);
+}
+
+function fixedAxes(layout) {
+  const axes = Object.keys(layout).filter((k) => /^[xy]axis\d*$/.test(k));
+  return axes.length >= 2 && axes.every((k) => {
+    const ax = layout[k] || {};
+    return ax.autorange === false && Array.isArray(ax.range);
+  });
+}
+
+function signature(fig) {
+  return {
+    layout: JSON.stringify(fig.layout),
+    config: JSON.stringify(fig.config),
+    traces: fig.data.map(withoutXY),
+    scatter: fig.data.every((t) => (t.type || "scatter") === "scatter"),
+    fixed: fixedAxes(fig.layout),
+  };
+}
+
+function onlyXYChanged(before, after) {
+  return before !== null && after.scatter && after.fixed &&
+    before.layout === after.layout && before.config === after.config &&
+    before.traces.length === after.traces.length &&
+    before.traces.every((t, i) => t === after.traces[i]);
+}
+
+function figureOf(model) {
+  const layout = Object.assign({}, model.get("figure_layout") || {});
+  const template = model.get("figure_template");
+  if (template && Object.keys(template).length) layout.template = template;
+  return { data: model.get("data") || [], layout, config: model.get("plot_config") || {} };
+}
+
+export default {
+  render({ model, el }) {
+    const div = document.createElement("div");
+    div.className = "hl-plot";
+    div.style.width = "100%";
+    const note = document.createElement("div");
+    note.className = "hl-plot-message";
+    el.appendChild(div);
+    el.appendChild(note);
+    let drawn = false;
+    let dirty = true;
+    let shown = null;     // signature of what is drawn
+    let alive = true;
+    let Plotly = null;
+
+    const view = {
+      async draw() {
+        if (!alive || !dirty) return;
+        if (!div.isConnected || div.clientWidth === 0) return;   // drawn when it gets a size
+        Plotly = Plotly || (await plotlyFor(model));
+        dirty = false;
+        const fig = figureOf(model);
+        const sig = signature(fig);
+        logEvent("draw", id);
+        let how;
+        if (drawn && onlyXYChanged(shown, sig)) {
+          how = "paths";
+          await Plotly.animate(
+            div,
+            { data: fig.data.map((t) => ({ x: t.x, y: t.y })), traces: fig.data.map((_, i) => i) },
+            { transition: { duration: 0 }, frame: { duration: 0, redraw: false } });
+        } else if (drawn) {
+          how = "react";
+          await Plotly.react(div, fig.data, fig.layout, fig.config);
+        } else {
+          how = "new";
+          await Plotly.newPlot(div, fig.data, fig.layout, fig.config);
+          drawn = true;
+        }
+        shown = sig;
+        div.dataset.lastDraw = how;   // "new", "react" or "paths" (the fast path)
+        logEvent("drawn:" + how, id);
+        note.textContent = "";
+      },
+      fail(err) {
+        dirty = true;
+        note.textContent = "chart not drawn: " + (err && err.message ? err.message : err);
+      },
+    };
+    const id = (model.model_id || model.cid || "").toString().slice(0, 8) + ":" +
+      (model.get("data") || []).length;
+    const changed = () => { logEvent("changed", id); dirty = true; schedule(view); };
+    model.on("change:data", changed);
+    model.on("change:figure_layout", changed);
+    model.on("change:figure_template", changed);
+    model.on("change:plot_config", changed);
+
+    let width = 0;
+    const ro = new ResizeObserver(() => {
+      const w = div.clientWidth;
+      if (w === width) return;
+      width = w;
+      if (w === 0) return;
+      if (!drawn || dirty) {
+        schedule(view);
+      } else if (Plotly) {
+        Plotly.Plots.resize(div);
+      }
+    });
+    ro.observe(div);
+    schedule(view);
+
+    return () => {
+      alive = false;
+      ro.disconnect();
+      const i = queue.indexOf(view);
+      if (i >= 0) queue.splice(i, 1);
+      if (Plotly && drawn) Plotly.purge(div);
+    };
+  },
+};
