@@ -28,6 +28,7 @@ import traitlets
 
 from kit import units
 from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
+from kit.panels.entry import TextEntry
 
 __all__ = ["QuantityField", "text_for"]
 
@@ -88,8 +89,8 @@ class QuantityField(Panel):
     ----------
     value : float or None
         SI magnitude [SI unit of ``kind``]; None while the text is invalid or empty.
-    input : ipywidgets.Text
-        The text box (``continuous_update=False``: read on Enter or leaving the box).
+    input : kit.panels.entry.TextEntry
+        The text box: read on Enter or on leaving the box (one message to the kernel).
     echo, message : ipywidgets.HTML
         The value in the display system (CSS ``hl-echo``) and the error line (``hl-error``).
     """
@@ -113,8 +114,7 @@ class QuantityField(Panel):
         self.default_unit = default_unit
         self.label = widgets.Label(label)
         self.label.add_class("hl-label")
-        self.input = widgets.Text(value="", continuous_update=False,
-                                  layout=widgets.Layout(width=width))
+        self.input = TextEntry(value="", layout=widgets.Layout(width=width))
         self.input.add_class("hl-input")
         self.echo = widgets.HTML("")
         self.echo.add_class("hl-echo")
