@@ -11,9 +11,13 @@ Every panel is an :class:`ipywidgets.VBox` subclass (see :mod:`kit.panels.base`)
 
 No panel computes hydraulics: each calls :mod:`kit.core`.
 
-nbformat is imported here on purpose, before plotly: plotly imports it lazily on the first
-``FigureWidget``, which inside a kernel costs several seconds (jsonschema format checkers);
-importing it up front moves that cost out of the first chart.
+Charts are :class:`kit.panels.plot_view.PlotView` widgets (plotly figures as plain JSON, drawn
+by ``Plotly.react``; plotly.js sent once per kernel); text boxes that feed the kernel are
+:class:`kit.panels.entry.TextEntry` (one message per Enter).
+
+nbformat is imported here on purpose, before plotly: plotly imports it lazily (figure display,
+``FigureWidget``), which inside a kernel costs seconds (jsonschema format checkers); importing
+it up front keeps that cost out of the first chart.
 """
 
 import nbformat  # noqa: F401  (imported early on purpose: see the module docstring)

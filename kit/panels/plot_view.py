@@ -208,6 +208,10 @@ class PlotView(anywidget.AnyWidget):
                 if new != self.figure_layout:
                     self.figure_layout = new
 
+    def __repr__(self) -> str:
+        title = (self.figure_layout.get("title") or {}).get("text", "")
+        return f"PlotView({len(self.data)} traces{', ' + repr(title) if title else ''})"
+
     def to_figure(self):
         """The figure shown, as a static ``plotly.graph_objects.Figure`` (template included)."""
         import plotly.graph_objects as go
