@@ -230,29 +230,19 @@ def test_bore_chart_holds_velocity_and_pressure_drop_panels(app):
 def test_a_rerender_sends_only_what_changed(app):
     """The same inputs again (from the cache) send no chart or dropdown update; a new design
     flow sends one update to the bore chart, not one per panel."""
-    import ipywidgets as widgets
+    from widgetspy import sent_messages
 
     app.flow_design.set_text("352 gpm")
     verdicts = [c.verdict for c in app.study.result.candidates]
-    sent = []
-    orig = widgets.Widget._send
-
-    def spy(self, msg, buffers=None):
-        sent.append((self, msg))
-        return orig(self, msg, buffers)
-
-    widgets.Widget._send = spy
-    try:
+    with sent_messages() as sent:
         app.recompute()                                          # same inputs: cached
         assert app.recomputes == 2 and sent == []
         app.flow_design.set_text("353 gpm")                      # the same verdicts
-        assert [c.verdict for c in app.study.result.candidates] == verdicts
-        updates = [m for w, m in sent if w is app.bore_chart.view]
-        assert len(updates) == 1 and set(updates[0]["state"]) == {"data"}   # ranges unchanged
-        assert not any(w is app.size for w, _ in sent)          # same options and value
-        assert any(w is app.profile_chart.view for w, _ in sent)  # the profile moved
-    finally:
-        widgets.Widget._send = orig
+    assert [c.verdict for c in app.study.result.candidates] == verdicts
+    updates = [m for w, m in sent if w is app.bore_chart.view]
+    assert len(updates) == 1 and set(updates[0]["state"]) == {"data"}   # ranges unchanged
+    assert not any(w is app.size for w, _ in sent)          # same options and value
+    assert any(w is app.profile_chart.view for w, _ in sent)  # the profile moved
 
 
 # ------------------------------------------------------------------ saving the state

@@ -376,26 +376,16 @@ def test_chart_updates_one_view_in_place():
 
 def test_chart_sends_only_what_changed():
     """The same series again send nothing; new data send the traces only, not the layout."""
-    import ipywidgets as widgets
+    from widgetspy import sent_messages
 
     c = Chart("flow", "head", title="system")
     c.set_series([Series("a", [0.0, 0.01], [1.0, 2.0])], x_range=(0.0, 0.02))
-    sent = []
-    orig = widgets.Widget._send
-
-    def spy(self, msg, buffers=None):
-        sent.append((self, msg))
-        return orig(self, msg, buffers)
-
-    widgets.Widget._send = spy
-    try:
+    with sent_messages() as sent:
         c.set_series([Series("a", [0.0, 0.01], [1.0, 2.0])])
         assert sent == []
         c.set_series([Series("a", [0.0, 0.01], [1.0, 2.5])])
-        states = [m["state"] for w, m in sent if w is c.view]
-        assert len(states) == 1 and set(states[0]) == {"data"}
-    finally:
-        widgets.Widget._send = orig
+    states = [m["state"] for w, m in sent if w is c.view]
+    assert len(states) == 1 and set(states[0]) == {"data"}
     assert c.to_figure().layout.xaxis.range == pytest.approx((0.0, 72.0))
 
 
