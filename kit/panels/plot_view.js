@@ -56,6 +56,7 @@ function logEvent(what, id) {
 // per chart, so module-level state would give each chart a queue of its own.
 const Q = (globalThis.__headlinePlotQueue ||= { queue: [], pumping: false });
 const queue = Q.queue;
+const STALL_MS = 3000;
 
 function schedule(view) {
   if (!queue.includes(view)) queue.push(view);
@@ -69,7 +70,8 @@ async function pump() {
   const view = queue.shift();
   if (view) {
     try {
-      await view.draw();
+      // a draw that never settles (its chart removed mid-way) must not stall the page's queue
+      await Promise.race([view.draw(), new Promise((r) => setTimeout(r, STALL_MS))]);
     } catch (err) {
       view.fail(err);
     }
