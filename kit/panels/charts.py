@@ -27,7 +27,7 @@ import numpy as np
 from kit import units
 from kit.panels.base import check_system
 
-__all__ = ["Series", "Chart", "to_display", "axis_title"]
+__all__ = ["Series", "Chart", "to_display", "axis_title", "trace_style"]
 
 
 def to_display(values, kind: str, system: str = "SI", unit: str | None = None) -> np.ndarray:
@@ -165,7 +165,7 @@ class Chart(widgets.VBox):
         sysm = self.system
         data = [dict(type="scatter", x=to_display(s.x, self.x_kind, sysm),
                      y=to_display(s.y, self.y_kind, sysm), name=s.name, mode=s.mode,
-                     **_with_line(s)) for s in self.series]
+                     **trace_style(s)) for s in self.series]
         axes = {}
         for key, kind, name in (("x", self.x_kind, self.x_name), ("y", self.y_kind, self.y_name)):
             ax = {"title": {"text": axis_title(name, kind, sysm)}}
@@ -191,7 +191,7 @@ class Chart(widgets.VBox):
         self._render()
 
 
-def _with_line(s) -> dict:
+def trace_style(s) -> dict:
     """The series' extra trace options (plotly names; ``line_width`` style allowed), with its
     dash and colour merged into ``line``; None values left out."""
     from kit.panels.plot_view import props

@@ -73,7 +73,7 @@ from kit.panels.base import (
     section_heading,
     stale_html,
 )
-from kit.panels.charts import Chart, Series, axis_title, to_display
+from kit.panels.charts import Chart, Series, axis_title, to_display, trace_style
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
@@ -212,8 +212,6 @@ class BoreChart(widgets.VBox):
 
     def figure_json(self) -> dict:
         """The figure as plotly JSON (display units)."""
-        from kit.panels.plot_view import props
-
         sysm = self.system
         layout = {k: dict(v) if isinstance(v, dict) else v for k, v in self._base_layout.items()}
         titles = {"xaxis": axis_title("bore", "diameter", sysm),
@@ -236,11 +234,9 @@ class BoreChart(widgets.VBox):
                 axes = ({"xaxis": "x", "yaxis": "y", "legend": "legend"} if panel == 0 else
                         {"xaxis": "x2", "yaxis": "y2", "legend": "legend2"})
                 for s in series:
-                    extra = dict(s.extra)
-                    line = {"dash": s.dash, "color": s.color, **dict(extra.pop("line", {}) or {})}
-                    data.append(props(type="scatter", x=to_display(s.x, "diameter", sysm),
-                                      y=to_display(s.y, kind, sysm), name=s.name, mode=s.mode,
-                                      line=line, **axes, **extra))
+                    data.append(dict(type="scatter", x=to_display(s.x, "diameter", sysm),
+                                     y=to_display(s.y, kind, sysm), name=s.name, mode=s.mode,
+                                     **axes, **trace_style(s)))
         return {"data": data, "layout": layout}
 
     def _render(self) -> None:

@@ -46,7 +46,7 @@ import ipywidgets as widgets
 import numpy as np
 import traitlets
 
-__all__ = ["PlotView", "PlotlyLibrary", "plotly_library", "plain", "props", "template_json"]
+__all__ = ["PlotView", "PlotlyLibrary", "plotly_library", "plain", "props"]
 
 _AXIS = re.compile(r"^[xy]axis\d*$")
 
@@ -127,13 +127,6 @@ def _template(name: str) -> dict:
     import plotly.io as pio
 
     return plain(pio.templates[name].to_plotly_json())
-
-
-def template_json(name: str) -> dict:
-    """plotly's named template (e.g. 'plotly_white') as a JSON dict (cached; a copy)."""
-    import copy
-
-    return copy.deepcopy(_template(name))
 
 
 def _fast_axes(layout: dict) -> dict:
