@@ -14,6 +14,9 @@ Tree::
     │   └── LiquidStateError               a liquid state outside its model (frozen, boiling, ...)
     ├── DimensionError (TypeError)         a quantity with the wrong physical dimension
     ├── ScenarioError (ValueError)         a scenario file with a missing or malformed key
+    │   ├── UnknownKeyError                a key the schema does not have (or has elsewhere)
+    │   ├── KeyTypeError                   a value of the wrong type (never coerced)
+    │   └── ScenarioFileError              a file that is not UTF-8 TOML text of a sane size
     ├── NoSolutionError (ValueError)       a calculation with no answer, and the reason why
     └── RecordError (ValueError)           a record file that is corrupted, edited or unreadable
 
@@ -35,6 +38,9 @@ __all__ = [
     "LiquidStateError",
     "DimensionError",
     "ScenarioError",
+    "UnknownKeyError",
+    "KeyTypeError",
+    "ScenarioFileError",
     "NoSolutionError",
     "RecordError",
     "check_range",
@@ -140,6 +146,30 @@ class ScenarioError(HeadlineError, ValueError):
         self.source = source
         where = f" in {source}" if source else ""
         super().__init__(f"scenario key '{key}'{where}: {reason}")
+
+
+class UnknownKeyError(ScenarioError):
+    """A key the schema does not declare where it stands; says where it belongs or what is near."""
+
+    def __init__(self, key: str, reason: str, source: str | None = None,
+                 suggestion: str | None = None, belongs_in: str | None = None):
+        self.suggestion = suggestion
+        self.belongs_in = belongs_in
+        super().__init__(key, reason, source)
+
+
+class KeyTypeError(ScenarioError):
+    """A value of the wrong TOML type for its key (``"false"`` is not false, 2.7 is not 2)."""
+
+    def __init__(self, key: str, value, expected: str, source: str | None = None):
+        self.value = value
+        self.expected = expected
+        shown = repr(value) if not isinstance(value, (dict, list)) else type(value).__name__
+        super().__init__(key, f"must be {expected}, not {shown}", source)
+
+
+class ScenarioFileError(ScenarioError):
+    """A scenario file that is not UTF-8 TOML text, too large, or nested too deep."""
 
 
 class NoSolutionError(HeadlineError, ValueError):

@@ -43,7 +43,22 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from kit import units
-from kit.errors import DimensionError, HeadlineError, ScenarioError
+from kit.errors import HeadlineError, ScenarioError, ScenarioFileError
+from kit.inputs.common import (
+    KINDS,
+    build_endpoint,
+    build_fitting,
+    build_line,
+    build_liquid,
+    build_pipe,
+    build_segment,
+    build_site,
+    build_temperatures,
+    get,
+    quantity,
+)
+from kit.inputs.common import SCHEMA_ID as SCHEMA
+from kit.inputs.common import _err
 
 __all__ = [
     "SCHEMA", "KINDS", "Scenario", "load", "loads", "dumps", "save", "get", "quantity",
@@ -51,8 +66,10 @@ __all__ = [
     "build_segment", "build_line", "build_endpoint", "build_system",
 ]
 
-SCHEMA = "headline-scenario/1"
-KINDS = ("line_sizing", "pump_selection", "tank_drainage")
+#: Largest scenario file read [bytes] (a calc sheet is a few kB; a line list inline is more).
+MAX_BYTES = 5_000_000
+#: Deepest nesting of tables and lists any scenario kind has.
+MAX_DEPTH = 8
 
 
 @dataclass
@@ -62,6 +79,8 @@ class Scenario:
     doc: dict
     source: str = "<memory>"
     _built: dict = field(default_factory=dict, repr=False, compare=False)
+    #: The text the document was read from: a save keeps its comments and layout.
+    text: str | None = field(default=None, repr=False, compare=False)
 
     @property
     def kind(self) -> str:
@@ -76,7 +95,7 @@ class Scenario:
         return self.doc.get("display", {}).get("system", "SI")
 
     def copy(self) -> Scenario:
-        return Scenario(copy.deepcopy(self.doc), self.source)
+        return Scenario(copy.deepcopy(self.doc), self.source, text=self.text)
 
     def set(self, path: str, value) -> None:
         """Set a dotted key (``"liquid.temperature_max"``) in the document."""
@@ -100,74 +119,118 @@ class Scenario:
                 else Path.cwd()
             try:
                 out.doc["batch"]["text"] = (base / file).read_text(encoding="utf-8")
+                out.doc["batch"]["source_file"] = out.doc["batch"].pop("file")
             except OSError as exc:
                 raise ScenarioError("batch.file", f"cannot be read: {exc.strerror}",
                                     self.source) from None
         return out
 
 
-def get(doc: dict, path: str, default=None):
-    """Read a dotted key from a nested dict, or ``default``."""
-    node = doc
-    for k in path.split("."):
-        if not isinstance(node, dict) or k not in node:
-            return default
-        node = node[k]
-    return node
+def decode(data: bytes, source: str = "<bytes>") -> str:
+    """Scenario bytes as text: UTF-8 only (a UTF-8 byte-order mark is dropped), at most
+    :data:`MAX_BYTES`; UTF-16 and binary files are refused with a message saying so.
 
-
-def _err(key: str, exc: Exception, source: str | None = None) -> ScenarioError:
-    return ScenarioError(key, str(exc), source)
-
-
-def quantity(doc: dict, key: str, kind: str, default=None, p_baro: float = 101325.0,
-             prefix: str = "") -> float:
-    """Parse ``doc[key]`` (a string with unit) as ``kind`` into SI, naming the key on error.
-
-    >>> quantity({"length": "10 ft"}, "length", "length")
-    3.048
+    >>> decode("kind = 'x'".encode())
+    "kind = 'x'"
     """
-    full = f"{prefix}{key}"
-    if key not in doc:
-        if default is not None:
-            return default
-        raise ScenarioError(full, f"is missing (a {units.KINDS[kind][1]} is required)")
+    if len(data) > MAX_BYTES:
+        raise ScenarioFileError("(file)", f"is {len(data):,} bytes; a scenario file may hold at "
+                                f"most {MAX_BYTES:,} bytes", source)
+    if data[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        raise ScenarioFileError("(file)", "is UTF-16 text; save it as UTF-8", source)
+    if b"\x00" in data:
+        raise ScenarioFileError("(file)", "holds NUL bytes: it is not a text file", source)
+    if data[:3] == b"\xef\xbb\xbf":
+        data = data[3:]
     try:
-        return units.parse(doc[key], kind, field=full, p_baro=p_baro)
-    except (HeadlineError, DimensionError) as exc:
-        raise _err(full, exc) from None
+        return data.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        raise ScenarioFileError("(file)", f"is not UTF-8 text (byte {exc.start} cannot be "
+                                "read); save it as UTF-8", source) from None
+
+
+def _depth(node, level: int = 0) -> int:
+    if level > MAX_DEPTH:
+        return level
+    if isinstance(node, dict):
+        return max((_depth(v, level + 1) for v in node.values()), default=level)
+    if isinstance(node, list):
+        return max((_depth(v, level + 1) for v in node), default=level)
+    return level
 
 
 def loads(text: str, source: str = "<string>") -> Scenario:
-    """Read a scenario from TOML text; check its schema and kind."""
+    """Read a scenario from TOML text and check it against its kind's schema (strict).
+
+    Unknown or misplaced keys, wrong types, unparsable quantities, out-of-range values and
+    missing required keys are refused with a :class:`~kit.errors.ScenarioError` (or a
+    subclass) naming the key path; see :mod:`kit.inputs.schema`.
+    """
+    from kit.inputs.kinds import ROOTS
+    from kit.inputs.schema import check
+
+    if isinstance(text, bytes):
+        text = decode(text, source)
+    if len(text) > MAX_BYTES:
+        raise ScenarioFileError("(file)", f"is {len(text):,} characters; a scenario file may "
+                                f"hold at most {MAX_BYTES:,}", source)
+    if text.startswith("\ufeff"):
+        text = text[1:]
     try:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise ScenarioError("(file)", f"is not valid TOML: {exc}", source) from None
+    except RecursionError:
+        raise ScenarioFileError("(file)", f"is nested deeper than any scenario (at most "
+                                f"{MAX_DEPTH} levels)", source) from None
+    if _depth(doc) > MAX_DEPTH:
+        raise ScenarioFileError("(file)", f"is nested deeper than any scenario (at most "
+                                f"{MAX_DEPTH} levels)", source)
     schema = doc.get("schema")
     if schema != SCHEMA:
         raise ScenarioError("schema", f"must be {SCHEMA!r}, not {schema!r}", source)
     if doc.get("kind") not in KINDS:
         raise ScenarioError("kind", f"must be one of {', '.join(KINDS)}, not {doc.get('kind')!r}",
                             source)
-    disp = get(doc, "display.system", "SI")
-    if disp not in units.DISPLAY:
-        raise ScenarioError("display.system", f"must be 'SI' or 'US', not {disp!r}", source)
-    return Scenario(doc, source)
+    p_baro = _site_pressure(doc, source)
+    check(doc, ROOTS[doc["kind"]], source, p_baro)
+    return Scenario(doc, source, text=text)
+
+
+def _site_pressure(doc: dict, source: str) -> float:
+    """The barometric pressure gauge pressures are read against (checked before the rest)."""
+    from kit.inputs.schema import check
+    from kit.inputs.common import SITE
+
+    site = doc.get("site", {})
+    check(site, SITE, source, path="site")
+    try:
+        return build_site(doc)
+    except ScenarioError as exc:
+        raise ScenarioError(exc.key, exc.reason, source) from None
 
 
 def load(path) -> Scenario:
-    """Read a scenario file."""
+    """Read a scenario file (UTF-8 TOML, at most :data:`MAX_BYTES`)."""
     p = Path(path)
     try:
-        text = p.read_text(encoding="utf-8")
+        if p.stat().st_size > MAX_BYTES:
+            raise ScenarioFileError("(file)", f"is {p.stat().st_size:,} bytes; a scenario file "
+                                    f"may hold at most {MAX_BYTES:,} bytes", str(p))
+        data = p.read_bytes()
     except OSError as exc:
         raise ScenarioError("(file)", f"cannot be read: {exc.strerror}", str(p)) from None
-    return loads(text, str(p))
+    return loads(decode(data, str(p)), str(p))
 
 
 def dumps(sc: Scenario) -> str:
-    """The scenario document as TOML text."""
+    """The scenario document as TOML text; a scenario read from text keeps that text's
+    comments, layout and inline tables wherever a value did not change
+    (:func:`kit.inputs.writer.merge`)."""
+    from kit.inputs.writer import merge
+
+    if sc.text is not None:
+        return merge(sc.text, sc.doc)
     import tomli_w
 
     return tomli_w.dumps(sc.doc)
@@ -179,183 +242,6 @@ def save(sc: Scenario, path) -> None:
 
 
 # ---------------------------------------------------------------- builders
-
-
-def build_site(doc: dict) -> float:
-    """Barometric pressure [Pa]: given, or from site elevation (US Std Atmosphere 1976)."""
-    from kit.core.site import barometric_pressure
-
-    site = doc.get("site", {})
-    if "barometric_pressure" in site:
-        return quantity(site, "barometric_pressure", "pressure", prefix="site.")
-    z = quantity(site, "elevation", "elevation", default=0.0, prefix="site.")
-    try:
-        return barometric_pressure(z)
-    except HeadlineError as exc:
-        raise _err("site.elevation", exc) from None
-
-
-def build_liquid(doc: dict):
-    """The liquid of ``[liquid]``: a catalogue entry or ``[liquid.user]``."""
-    from kit.core import liquids
-
-    sec = doc.get("liquid")
-    if not isinstance(sec, dict):
-        raise ScenarioError("liquid", "section is missing")
-    try:
-        if "user" in sec:
-            u = sec["user"]
-            def column(key, kind, required=True):
-                raw = u.get(key)
-                if raw is None:
-                    if required:
-                        raise ScenarioError(f"liquid.user.{key}", "is missing")
-                    return None
-                vals = tuple(units.parse(t, kind, f"liquid.user.{key}") for t in _as_list(raw, key))
-                return vals if isinstance(raw, list) else vals[0]  # one value: a constant
-
-            T = column("temperature", "temperature")
-            return liquids.UserLiquid(
-                u.get("name", "user liquid"), T=T if isinstance(T, tuple) else (T,),
-                rho=column("density", "density"), mu=column("viscosity", "viscosity"),
-                pv=column("vapour_pressure", "pressure", required=False),
-                flammable=bool(u.get("flammable", False)))
-        conc = sec.get("concentration")
-        conc = None if conc is None else units.parse(conc, "fraction", "liquid.concentration")
-        return liquids.make_liquid(sec.get("key"), conc)
-    except ScenarioError:
-        raise
-    except (HeadlineError, DimensionError) as exc:
-        raise _err("liquid", exc) from None
-
-
-def _as_list(value, key: str) -> list:
-    if value is None:
-        raise ScenarioError(key, "is missing")
-    return value if isinstance(value, list) else [value]
-
-
-def build_temperatures(doc: dict) -> tuple[float, float]:
-    """(T_min, T_max) [K] from ``[liquid]``; one ``temperature`` key serves for both."""
-    sec = doc.get("liquid", {})
-    if "temperature" in sec:
-        T = quantity(sec, "temperature", "temperature", prefix="liquid.")
-        return T, T
-    lo = quantity(sec, "temperature_min", "temperature", prefix="liquid.")
-    hi = quantity(sec, "temperature_max", "temperature", prefix="liquid.")
-    if hi < lo:
-        raise ScenarioError("liquid.temperature_max", "must not be below temperature_min")
-    return lo, hi
-
-
-def build_pipe(spec: dict, key: str):
-    """A catalogue pipe (standard, nominal, schedule) or a custom bore (``bore``)."""
-    from kit.core import pipes
-
-    if not isinstance(spec, dict):
-        raise ScenarioError(key, "must be a table with standard/nominal/schedule or bore")
-    material = spec.get("material", "carbon_steel")
-    condition = spec.get("condition", "new")
-    try:
-        if "bore" in spec:
-            Di = quantity(spec, "bore", "diameter", prefix=f"{key}.")
-            rough = spec.get("roughness")
-            rough = None if rough is None else quantity(spec, "roughness", "roughness",
-                                                        prefix=f"{key}.")
-            return pipes.custom_pipe(Di, material, condition, roughness=rough)
-        return pipes.catalogue_pipe(spec.get("standard"), str(spec.get("nominal")),
-                                    str(spec.get("schedule")), material, condition)
-    except ScenarioError:
-        raise
-    except (HeadlineError, DimensionError) as exc:
-        raise _err(key, exc) from None
-
-
-_PARAM_KIND = {"m": "length", "m/s": "velocity", "Pa": "pressure_difference"}
-
-
-def build_fitting(spec: dict, key: str):
-    """One fitting row: ``kind``, ``count``, ``label`` and the kind's parameters."""
-    from kit.core import fittings
-
-    if not isinstance(spec, dict) or "kind" not in spec:
-        raise ScenarioError(key, "must be a table with a 'kind'")
-    kind = spec["kind"]
-    if kind not in fittings.FITTING_KINDS:
-        raise ScenarioError(f"{key}.kind", f"must be one of {', '.join(fittings.FITTING_KINDS)}, "
-                            f"not {kind!r}")
-    specs = {p.name: p for p in fittings.FITTING_KINDS[kind].params}
-    params = {}
-    for name, value in spec.items():
-        if name in ("kind", "count", "label"):
-            continue
-        if name not in specs:
-            raise ScenarioError(f"{key}.{name}", f"is not a parameter of '{kind}' (choices: "
-                                f"{', '.join(specs) or 'none'})")
-        unit = getattr(specs[name], "unit", "-")
-        if isinstance(value, str) and unit in _PARAM_KIND:
-            params[name] = quantity(spec, name, _PARAM_KIND[unit], prefix=f"{key}.")
-        else:
-            params[name] = value
-    try:
-        return fittings.Fitting(kind, int(spec.get("count", 1)), params, spec.get("label", ""))
-    except (HeadlineError, DimensionError, TypeError) as exc:
-        raise _err(key, exc) from None
-
-
-def build_segment(spec: dict, key: str):
-    """One segment: name, pipe, length, rise, fittings, station."""
-    from kit.core.line import Segment
-
-    name = spec.get("name")
-    if not name:
-        raise ScenarioError(f"{key}.name", "is missing")
-    pipe = build_pipe(spec.get("pipe"), f"{key}.pipe")
-    length = quantity(spec, "length", "length", prefix=f"{key}.")
-    rise = quantity(spec, "rise", "length", default=0.0, prefix=f"{key}.")
-    fits = tuple(build_fitting(f, f"{key}.fittings[{i}]")
-                 for i, f in enumerate(spec.get("fittings", [])))
-    try:
-        return Segment(name, pipe, length, rise, fits, spec.get("station"))
-    except HeadlineError as exc:
-        raise _err(key, exc) from None
-
-
-def build_line(doc: dict, which: str):
-    """The line of section ``which`` (``"suction"``/``"discharge"``), or None if absent."""
-    from kit.core.line import Line
-
-    sec = doc.get(which)
-    if sec is None:
-        return None
-    segs = sec.get("segments")
-    if not segs:
-        raise ScenarioError(f"{which}.segments", "must list at least one segment")
-    built = tuple(build_segment(s, f"{which}.segments[{i}]") for i, s in enumerate(segs))
-    z0 = quantity(sec, "start_elevation", "elevation", default=0.0, prefix=f"{which}.")
-    try:
-        return Line(sec.get("name", which), built, sec.get("start_station", "start"), z0)
-    except HeadlineError as exc:
-        raise _err(which, exc) from None
-
-
-def build_endpoint(doc: dict, which: str, p_baro: float):
-    """Source or destination endpoint; pressures may be gauge (against ``p_baro``)."""
-    from kit.core.system import Endpoint
-
-    sec = doc.get(which)
-    if not isinstance(sec, dict):
-        raise ScenarioError(which, "section is missing")
-    if "level" in sec:
-        lo = hi = quantity(sec, "level", "elevation", prefix=f"{which}.")
-    else:
-        lo = quantity(sec, "level_low", "elevation", prefix=f"{which}.")
-        hi = quantity(sec, "level_high", "elevation", prefix=f"{which}.")
-    p = quantity(sec, "pressure", "pressure", default=p_baro, p_baro=p_baro, prefix=f"{which}.")
-    try:
-        return Endpoint(sec.get("name", which), lo, hi, p, sec.get("discharge", "submerged"))
-    except HeadlineError as exc:
-        raise _err(which, exc) from None
 
 
 def build_system(sc: Scenario):
