@@ -42,8 +42,7 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from kit import units
-from kit.errors import HeadlineError, ScenarioError, ScenarioFileError
+from kit.errors import ScenarioError, ScenarioFileError
 from kit.inputs.common import (
     KINDS,
     build_endpoint,
@@ -58,7 +57,6 @@ from kit.inputs.common import (
     quantity,
 )
 from kit.inputs.common import SCHEMA_ID as SCHEMA
-from kit.inputs.common import _err
 
 __all__ = [
     "SCHEMA", "KINDS", "Scenario", "load", "loads", "dumps", "save", "get", "quantity",
@@ -199,8 +197,8 @@ def loads(text: str, source: str = "<string>") -> Scenario:
 
 def _site_pressure(doc: dict, source: str) -> float:
     """The barometric pressure gauge pressures are read against (checked before the rest)."""
-    from kit.inputs.schema import check
     from kit.inputs.common import SITE
+    from kit.inputs.schema import check
 
     site = doc.get("site", {})
     check(site, SITE, source, path="site")
@@ -244,28 +242,9 @@ def save(sc: Scenario, path) -> None:
 # ---------------------------------------------------------------- builders
 
 
-def build_system(sc: Scenario):
-    """The :class:`~kit.core.system.System` of a scenario (cached on the scenario)."""
-    from kit.core.system import System
+def build_system(sc):
+    """The :class:`~kit.core.system.System` of a pump-selection scenario
+    (:func:`kit.inputs.pump_selection.build_system`)."""
+    from kit.inputs.pump_selection import build_system as build
 
-    if "system" in sc._built:
-        return sc._built["system"]
-    doc = sc.doc
-    p_baro = build_site(doc)
-    liquid = build_liquid(doc)
-    T_min, T_max = build_temperatures(doc)
-    src = build_endpoint(doc, "source", p_baro)
-    dst = build_endpoint(doc, "destination", p_baro)
-    suction = build_line(doc, "suction")
-    discharge = build_line(doc, "discharge")
-    z_pump = get(doc, "pump_elevation")
-    z_pump = None if z_pump is None else quantity(doc, "pump_elevation", "elevation")
-    try:
-        for T in {T_min, T_max}:
-            liquid.state(T, max(src.pressure, p_baro))
-        out = System(doc.get("title", "system"), src, dst, suction, discharge, liquid, T_min,
-                     T_max, p_baro, z_pump)
-    except HeadlineError as exc:
-        raise _err("liquid", exc) from None
-    sc._built["system"] = out
-    return out
+    return build(sc)

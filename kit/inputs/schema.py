@@ -32,6 +32,7 @@ import difflib
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 from kit.errors import (
     DimensionError,
@@ -136,8 +137,14 @@ class Tables:
 # ------------------------------------------------------------------ index and suggestions
 
 
+_INDEXES: dict = {}
+
+
 def key_index(root: Table) -> dict:
     """``{key name: [table path, ...]}`` over the whole schema (for "belongs in" hints)."""
+    hit = _INDEXES.get(id(root))
+    if hit is not None and hit[0] is root:
+        return hit[1]
     out: dict = {}
 
     def walk(t, path):
@@ -149,6 +156,7 @@ def key_index(root: Table) -> dict:
                 walk(k.table, f"{path}.{k.name}" if path else k.name)
 
     walk(root, "")
+    _INDEXES[id(root)] = (root, out)
     return out
 
 
@@ -330,6 +338,14 @@ def _value(value, k: Key, path: str, ctx: Context) -> None:
         k.check(value, path, ctx)
 
 
+@lru_cache(maxsize=8192)
+def _si(text: str, kind: str, p_baro: float) -> float:
+    """:func:`kit.units.parse` memoised on its inputs (a pure function of them)."""
+    from kit import units
+
+    return units.parse(text, kind, "value", p_baro)
+
+
 def _quantity(value, k: Key, path: str, ctx: Context) -> float:
     from kit import units
 
@@ -339,7 +355,10 @@ def _quantity(value, k: Key, path: str, ctx: Context) -> float:
     if not isinstance(value, str):
         raise KeyTypeError(path, value, TYPES["quantity"], ctx.source)
     try:
-        x = units.parse(value, k.kind, field=path, p_baro=ctx.p_baro)
+        try:
+            x = _si(value, k.kind, ctx.p_baro)
+        except (HeadlineError, DimensionError):
+            x = units.parse(value, k.kind, field=path, p_baro=ctx.p_baro)  # names the key
     except (HeadlineError, DimensionError) as exc:
         raise ScenarioError(path, str(exc), ctx.source) from None
     _bounds(x, k, path, ctx, unit=units.KINDS[k.kind][0] or None, text=value)

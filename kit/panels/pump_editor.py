@@ -394,7 +394,7 @@ class PumpEditor(Panel):
         return doc
 
     def _rebuild(self) -> None:
-        from kit.studies.pump_selection import build_pump
+        from kit.inputs.pump_selection import build_pump
 
         try:
             doc = self._read_doc()

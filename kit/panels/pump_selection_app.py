@@ -38,6 +38,7 @@ from kit import units
 from kit.core.findings import Severity
 from kit.core.operating import BEP_REGIONS
 from kit.errors import InputError
+from kit.inputs import pump_selection as pump_inputs
 from kit.panels.base import KIT_ERRORS, check_system, error_html, error_widget
 from kit.panels.charts import to_display
 from kit.panels.display import DisplaySwitch
@@ -197,7 +198,7 @@ class PumpSelectionApp(widgets.VBox):
 
         self.scenario = scenario.copy()
         self.display = check_system(system or scenario.display_system)
-        self.pumps = ps.build_pumps(self.scenario)
+        self.pumps = list(pump_inputs.read(self.scenario).pumps)
         self.study = ps.study(self.scenario, pumps=self.pumps)
         self.results = ps.results_of(self.scenario, self.study)
         self._busy = False
@@ -278,11 +279,13 @@ class PumpSelectionApp(widgets.VBox):
         if self.t_min.value is None or self.t_max.value is None:
             self._refuse("liquid temperature", "is not a temperature yet")
             return
-        liq = self.scenario.doc.setdefault("liquid", {})
-        liq.pop("temperature", None)
-        liq["temperature_min"] = self.t_min.text
-        liq["temperature_max"] = self.t_max.text
-        self.scenario._built.clear()
+        try:
+            scenario = pump_inputs.with_temperatures(self.scenario, self.t_min.text,
+                                                     self.t_max.text)
+        except KIT_ERRORS as exc:
+            self._refuse_error(exc)
+            return
+        self.scenario = scenario
         self.recompute()
 
     def _on_pump(self, change) -> None:
@@ -293,7 +296,12 @@ class PumpSelectionApp(widgets.VBox):
             self._refuse(f"pump '{self.pumps[i].name}'", "has an input refused (see beside the "
                          "table)")
             return
-        self.scenario.doc["pumps"][i] = dict(self.editor.doc)
+        try:
+            scenario = pump_inputs.with_pump(self.scenario, i, self.editor.doc)
+        except KIT_ERRORS as exc:
+            self._refuse_error(exc)
+            return
+        self.scenario = scenario
         self.pumps[i] = self.editor.value
         self.recompute()
 
@@ -303,6 +311,10 @@ class PumpSelectionApp(widgets.VBox):
             self.editor.load(self.scenario.doc["pumps"][int(change["new"])])
         finally:
             self._busy = False
+
+    def _refuse_error(self, exc) -> None:
+        self.message.value = error_html(f"{exc}; the results shown are for the last accepted "
+                                        "inputs")
 
     def _refuse(self, what: str, why: str) -> None:
         self.message.value = error_html(f"{what} {why}; the results shown are for the last "

@@ -33,137 +33,27 @@ Example
 
 from __future__ import annotations
 
-import re
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from kit import scenario as scn
-from kit import units
 from kit.core.findings import Finding, Severity, cautions_for, worst
 from kit.core.friction import FRICTION_METHOD
-from kit.errors import DimensionError, HeadlineError, InputError, NoSolutionError, ScenarioError
+from kit.errors import HeadlineError, InputError, NoSolutionError
+from kit.inputs.pump_selection import (
+    ARRANGEMENTS,
+    PUMP_KEYS,
+    PumpInputs,
+    build_pump,
+    build_pumps,
+    read,
+)
 from kit.results import Results
 
 __all__ = [
     "ARRANGEMENTS", "PUMP_KEYS", "GRID_POINTS", "POLISH_TOL", "PumpStudy", "build_pumps",
     "build_pump", "study", "compute", "control_condition", "findings_summary", "results_of",
 ]
-
-#: Pump arrangements a ``[[pumps]]`` table may name.
-ARRANGEMENTS = ("single", "parallel", "series")
-
-#: Keys a ``[[pumps]]`` table may hold (anything else is refused, naming the key).
-PUMP_KEYS = ("name", "speed", "impeller", "arrangement", "count", "flow", "head", "efficiency",
-             "npshr", "power", "run_speed", "trim", "note")
-
-_LIST_KIND = {"flow": "flow", "head": "head", "efficiency": "fraction", "npshr": "head",
-              "power": "power"}
-#: The first words of a PumpCurve error's field -> the scenario key it came from.
-_FIELD_KEY = (("flow of pump", "flow"), ("head of pump", "head"),
-              ("efficiency of pump", "efficiency"), ("NPSHr of pump", "npshr"),
-              ("power of pump", "power"), ("speed of pump", "speed"),
-              ("impeller diameter", "impeller"), ("trimmed impeller", "trim"))
-
-
-def _list(sec: dict, key: str, prefix: str, required: bool = True):
-    vals = sec.get(key)
-    if vals is None:
-        if required:
-            raise ScenarioError(f"{prefix}{key}", "is missing (a list of values with units)")
-        return None
-    if not isinstance(vals, list):
-        raise ScenarioError(f"{prefix}{key}", "must be a list of values with units")
-    out = []
-    for i, v in enumerate(vals):
-        try:
-            out.append(units.parse(v, _LIST_KIND[key], f"{prefix}{key}[{i}]"))
-        except (HeadlineError, DimensionError) as exc:
-            raise ScenarioError(f"{prefix}{key}[{i}]", str(exc)) from None
-    return out
-
-
-def _key_of(exc: InputError, key: str) -> str:
-    """The scenario key a PumpCurve error points at: 'pumps[0].head[2]' for 'point 3'."""
-    fld = str(getattr(exc, "field", ""))
-    for start, sub in _FIELD_KEY:
-        if fld.startswith(start):
-            m = re.search(r"point (\d+)", fld)
-            return f"{key}.{sub}" + (f"[{int(m.group(1)) - 1}]" if m else "")
-    return key
-
-
-def build_pump(sec: dict, key: str):
-    """One datasheet pump (and its arrangement) from a ``[[pumps]]`` table.
-
-    Returns a :class:`kit.core.pump.PumpCurve`, or a :class:`kit.core.pump.PumpSet` for
-    ``count`` > 1 pumps in parallel or series. Errors are :class:`ScenarioError` naming the
-    key (``pumps[1].head[2]``).
-    """
-    from kit.core.pump import PumpCurve, parallel, series
-
-    if not isinstance(sec, dict):
-        raise ScenarioError(key, "must be a table with name, speed, impeller, flow and head")
-    for k in sec:
-        if k not in PUMP_KEYS:
-            raise ScenarioError(f"{key}.{k}", f"is not a pump key (choices: {', '.join(PUMP_KEYS)})")
-    name = str(sec.get("name") or key)
-    arrangement = sec.get("arrangement", "single")
-    if arrangement not in ARRANGEMENTS:
-        raise ScenarioError(f"{key}.arrangement",
-                            f"must be one of {', '.join(ARRANGEMENTS)}, not {arrangement!r}")
-    count = sec.get("count", 1)
-    if isinstance(count, bool) or not isinstance(count, int) or not 1 <= count <= 8:
-        raise ScenarioError(f"{key}.count", f"must be a whole number from 1 to 8, not {count!r}")
-    if arrangement == "single" and count != 1:
-        raise ScenarioError(f"{key}.count", f"must be 1 for a single pump, not {count}")
-    if arrangement != "single" and count < 2:
-        raise ScenarioError(f"{key}.count", f"must be at least 2 pumps in {arrangement}, "
-                            f"not {count}")
-    Q = _list(sec, "flow", f"{key}.")
-    H = _list(sec, "head", f"{key}.")
-    eta = _list(sec, "efficiency", f"{key}.", required=False)
-    npshr = _list(sec, "npshr", f"{key}.", required=False)
-    power = _list(sec, "power", f"{key}.", required=False)
-    for what, vals in (("head", H), ("efficiency", eta), ("npshr", npshr), ("power", power)):
-        if vals is not None and len(vals) != len(Q):
-            raise ScenarioError(f"{key}.{what}", f"must have one value per flow point "
-                                f"({len(Q)} flows), not {len(vals)}")
-    speed = scn.quantity(sec, "speed", "speed", prefix=f"{key}.")
-    dia = scn.quantity(sec, "impeller", "diameter", prefix=f"{key}.")
-    try:
-        pump = PumpCurve(Q, H, speed_rpm=speed, diameter=dia, efficiency=eta, npshr=npshr,
-                         power=power, name=name)
-        if "run_speed" in sec:
-            pump = pump.at_speed(scn.quantity(sec, "run_speed", "speed", prefix=f"{key}."))
-        if "trim" in sec:
-            pump = pump.trimmed(scn.quantity(sec, "trim", "diameter", prefix=f"{key}."))
-        if arrangement == "single":
-            return pump
-        combine = parallel if arrangement == "parallel" else series
-        return combine([pump] * count, name=f"{count} × {name} in {arrangement}")
-    except ScenarioError:
-        raise
-    except InputError as exc:
-        raise ScenarioError(_key_of(exc, key), str(exc)) from None
-    except HeadlineError as exc:
-        raise ScenarioError(key, str(exc)) from None
-
-
-def build_pumps(sc) -> list:
-    """Every candidate of ``[[pumps]]`` (names must differ)."""
-    pumps = sc.doc.get("pumps")
-    if not pumps or not isinstance(pumps, list):
-        raise ScenarioError("pumps", "must list at least one candidate pump ([[pumps]] tables)")
-    out = [build_pump(p, f"pumps[{i}]") for i, p in enumerate(pumps)]
-    seen = set()
-    for i, p in enumerate(out):
-        if p.name in seen:
-            raise ScenarioError(f"pumps[{i}].name", f"repeats the name {p.name!r}; names must "
-                                "differ")
-        seen.add(p.name)
-    return out
-
 
 def control_condition(system, Q_req: float):
     """The band condition with the highest system head at the required flow.
@@ -372,8 +262,8 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
 
     Parameters
     ----------
-    sc : kit.scenario.Scenario
-        A ``pump_selection`` scenario [-]
+    sc : kit.scenario.Scenario or kit.inputs.pump_selection.PumpInputs
+        A ``pump_selection`` scenario, or its typed inputs [-]
     pumps : list of PumpCurve or PumpSet, optional
         Candidates; default those of ``[[pumps]]`` [-]
     system : kit.core.system.System, optional
@@ -385,36 +275,17 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
     """
     from kit.core.motors import motor_efficiency, select_motor
     from kit.core.operating import (
-        NPSH_MARGINS,
         annual_cost,
         annual_energy,
         compare_control,
         joules_to_kWh,
     )
 
-    system = system or scn.build_system(sc)
-    pumps = pumps if pumps is not None else build_pumps(sc)
-    duty = sc.doc.get("duty", {})
-    q_req = scn.quantity(duty, "flow", "flow", prefix="duty.") if "flow" in duty else None
-    application = duty.get("npsh_application", "general")
-    if application not in NPSH_MARGINS:
-        raise ScenarioError("duty.npsh_application", f"must be one of "
-                            f"{', '.join(NPSH_MARGINS)}, not {application!r}")
-    op = sc.doc.get("operation", {})
-    hours = scn.quantity(op, "hours_per_year", "time", default=0.0, prefix="operation.") / 3600.0
-    if not 0.0 <= hours <= 8784.0:
-        raise ScenarioError("operation.hours_per_year", f"must be 0 to 8784 h, not {hours:g} h")
-    tariff = op.get("tariff", 0.0)
-    if isinstance(tariff, bool) or not isinstance(tariff, (int, float)) or tariff < 0:
-        raise ScenarioError("operation.tariff", f"must be a number ≥ 0 (cost per kWh), not "
-                            f"{tariff!r}")
-    tariff = float(tariff)
-    series = op.get("motor_series", "IEC")
-    from kit.core.motors import MOTOR_SERIES
-
-    if series not in MOTOR_SERIES:
-        raise ScenarioError("operation.motor_series",
-                            f"must be one of {', '.join(MOTOR_SERIES)}, not {series!r}")
+    inp = sc if isinstance(sc, PumpInputs) else read(sc)
+    system = system or inp.system
+    pumps = list(pumps) if pumps is not None else list(inp.pumps)
+    q_req, application = inp.required_flow, inp.npsh_application
+    hours, tariff, series = inp.hours, inp.tariff, inp.motor_series
     q_top = max(p.q_end for p in pumps)
     Q = np.linspace(0.0, q_top, GRID_POINTS)
     band = system.band(Q)
@@ -495,7 +366,7 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
                 control = None
     return PumpStudy(system, Q, band, pumps, points, errors, motors, energy, control,
                      control_label, rec, verdicts, q_req, findings, npsha_grid, hours, tariff,
-                     str(op.get("currency", "")), application)
+                     inp.currency, application)
 
 
 def _motor_eta(motor_efficiency, rating: float) -> float:
