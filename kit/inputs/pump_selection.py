@@ -67,7 +67,7 @@ def read(sc) -> PumpInputs:
     if "inputs" in sc._built:
         return sc._built["inputs"]
     doc = sc.doc
-    check(doc, ROOT, sc.source, build_site(doc))  # a document edited in memory is checked too
+    check(doc, ROOT, None, build_site(doc))  # a document edited in memory is checked too
     duty = doc.get("duty", {})
     op = doc.get("operation", {})
     q_req = quantity(duty, "flow", "flow", prefix="duty.") if "flow" in duty else None

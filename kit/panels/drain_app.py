@@ -56,6 +56,7 @@ from kit.core.drain import ORIFICE_CD, OrificeOutlet, PipedOutlet
 from kit.core.findings import cautions_for
 from kit.core.line import Segment
 from kit.errors import InputError
+from kit.inputs import tank_drainage as td_inputs
 from kit.panels.base import (
     KIT_ERRORS,
     InvalidInput,
@@ -673,7 +674,7 @@ class DrainApp(widgets.VBox):
 
         head = row.read()
         try:
-            was = td._head(old, "head") if old is not None else None
+            was = td_inputs.head_of(old, "head") if old is not None else None
         except KIT_ERRORS:
             was = None
         if isinstance(was, str):
@@ -734,7 +735,7 @@ class DrainApp(widgets.VBox):
         else:
             ov = old.get("vent") if isinstance(old.get("vent"), dict) else {}
             try:
-                same = td._vent(ov) == s.vent if ov else False
+                same = td_inputs.vent_of(ov) == s.vent if ov else False
             except KIT_ERRORS:
                 same = False
             out["vent"] = dict(ov) if same else {
@@ -750,7 +751,7 @@ class DrainApp(widgets.VBox):
         if isinstance(outlet, OrificeOutlet):
             if old.get("type") == "orifice":
                 try:
-                    was = td._orifice(old)
+                    was = td_inputs.orifice_of(old)
                 except KIT_ERRORS:
                     was = None
                 if was is not None and (was.diameter, was.Cd, was.elevation_offset) == (
