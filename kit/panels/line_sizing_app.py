@@ -52,7 +52,6 @@ from __future__ import annotations
 
 import html
 import math
-from dataclasses import replace
 
 import ipywidgets as widgets
 import numpy as np
@@ -63,6 +62,7 @@ from kit.core.criteria import DUTY_CLASSES, MARGINAL_FRACTION
 from kit.core.line import G
 from kit.core.roughness import CONDITIONS, materials
 from kit.core.sizing import Route
+from kit.inputs import line_sizing as ls_inputs
 from kit.panels.base import (
     KIT_ERRORS,
     InvalidInput,
@@ -579,15 +579,13 @@ class LineSizingApp(widgets.VBox):
         Qd, Qmin, Qmax = field_value(self.flow_design), field_value(self.flow_min), field_value(self.flow_max)
         base = DUTY_CLASSES[self.duty.value]
         v_min, v_max, dp_max = field_value(self.v_min), field_value(self.v_max), field_value(self.dp_max)
-        duty = base
         given = self._scenario_duty
         if given.key == base.key and (v_min, v_max, dp_max) == (given.v_min, given.v_max,
                                                                 given.dp_max):
             duty = given
-        elif (v_min, v_max, dp_max) != (base.v_min, base.v_max, base.dp_max):
-            duty = replace(base, v_min=v_min, v_max=v_max, dp_max=dp_max,
-                           source="edited in the notebook; defaults: " + DUTY_CLASSES[
-                               base.key].source)
+        else:
+            duty = ls_inputs.edited_duty(base.key, "edited in the notebook", v_min=v_min, v_max=v_max,
+                                         dp_max=dp_max)
         L = field_value(self.length)
         pts = []
         for i, row in enumerate(self.points):
@@ -595,12 +593,9 @@ class LineSizingApp(widgets.VBox):
             pts.append((row.name.value.strip() or f"point {i + 1}", x, field_value(row.elevation)))
         route = Route(L, tuple(pts), fits, field_value(self.start_elevation),
                       self.start_name.value.strip() or "start")
-        pipes = ls.candidate_pipes(self.standard.value, self.schedule.value, self.material.value,
-                                   self.condition.value, self.fixed_sizes)
-        if not pipes:
-            raise InvalidInput(f"no size of {self.standard.value} has schedule {self.schedule.value}")
-        if self.fixed_sizes is None:
-            pipes = ls.sizes_in_reach(pipes, Qd, duty)
+        pipes = ls_inputs.candidates(self.standard.value, self.schedule.value,
+                                     self.material.value, self.condition.value,
+                                     self.fixed_sizes, Qd, duty)
         return ls.SizingInputs(route, sel.liquid, sel.state, duty, Qd, Qmin, Qmax,
                                self.standard.value, self.schedule.value, self.material.value,
                                self.condition.value, pipes, field_value(self.end_pressure),

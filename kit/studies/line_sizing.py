@@ -36,7 +36,7 @@ from __future__ import annotations
 
 import csv
 import io
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
 
@@ -48,8 +48,14 @@ from kit.core.criteria import DUTY_CLASSES, MARGINAL_FRACTION, DutyClass
 from kit.core.findings import cautions_for
 from kit.core.friction import FRICTION_METHOD
 from kit.core.line import G
-from kit.core.sizing import Route, SizingResult, batch_friction, size_line
+from kit.core.sizing import SizingResult, batch_friction, size_line
 from kit.errors import DimensionError, HeadlineError, InputError, ScenarioError, check_range
+from kit.inputs.line_sizing import (
+    SizingInputs,
+    candidate_pipes,
+    inputs,
+    sizes_in_reach,
+)
 from kit.results import Results
 
 __all__ = ["SizingInputs", "SizingStudy", "inputs", "study", "run", "compute", "size_batch",
@@ -59,28 +65,6 @@ __all__ = ["SizingInputs", "SizingStudy", "inputs", "study", "run", "compute", "
 #: Columns of a line list, in order (``tag`` is required; the others have defaults).
 LINE_LIST_COLUMNS = ("tag", "flow", "liquid", "temperature", "length", "rise", "duty",
                      "standard", "schedule", "material", "condition", "k_total")
-
-
-@dataclass(frozen=True)
-class SizingInputs:
-    """Everything one sizing needs, in SI (built from a scenario or from the panels)."""
-
-    route: Route
-    liquid: object
-    state: object
-    duty: DutyClass
-    Q_design: float
-    Q_min: float
-    Q_max: float
-    standard: str
-    schedule: str
-    material: str
-    condition: str
-    sizes: tuple
-    p_end: float
-    p_baro: float
-    vapour_margin: float
-    erosional_C: float
 
 
 @dataclass(frozen=True)
@@ -101,114 +85,6 @@ class SizingStudy:
             if c.pipe.nominal == nominal:
                 return i
         return None
-
-
-def _duty(doc) -> DutyClass:
-    key = scn.get(doc, "sizing.duty", "general_transfer")
-    if key not in DUTY_CLASSES:
-        raise ScenarioError("sizing.duty", f"must be one of {', '.join(DUTY_CLASSES)}, not {key!r}")
-    duty = DUTY_CLASSES[key]
-    crit = doc.get("criteria", {})
-    changes = {}
-    if "v_min" in crit:
-        changes["v_min"] = scn.quantity(crit, "v_min", "velocity", prefix="criteria.")
-    if "v_max" in crit:
-        changes["v_max"] = scn.quantity(crit, "v_max", "velocity", prefix="criteria.")
-    if "dp_max" in crit:
-        changes["dp_max"] = scn.quantity(crit, "dp_max", "pressure_per_length",
-                                         prefix="criteria.")
-    if changes:
-        try:
-            duty = replace(duty, source="user-set in [criteria]; others: " + duty.source,
-                           **changes)
-        except HeadlineError as exc:
-            raise ScenarioError("criteria", str(exc)) from None
-    return duty
-
-
-@lru_cache(maxsize=256)
-def candidate_pipes(standard, schedule, material, condition, sizes=None) -> tuple:
-    """Catalogue pipes of one schedule, smallest first (sizes without that schedule skipped).
-
-    Cached: a pure function of its arguments (``sizes`` a tuple of nominal sizes or None).
-    """
-    from kit.core import pipes
-
-    out = []
-    for nom in sizes or pipes.nominal_sizes(standard):
-        if schedule in pipes.schedules(standard, nom):
-            out.append(pipes.catalogue_pipe(standard, nom, schedule, material, condition))
-    return tuple(out)
-
-
-def sizes_in_reach(pipes, Q: float, duty: DutyClass) -> tuple:
-    """The pipes whose design velocity is within reach of the duty's range
-    (a quarter of ``v_min`` to 2.5 × ``v_max``); all of them if none is."""
-    keep = tuple(p for p in pipes if 0.25 * duty.v_min <= Q / p.area <= 2.5 * duty.v_max)
-    return keep or tuple(pipes)
-
-
-def _route(doc) -> Route:
-    sec = doc.get("route")
-    if not isinstance(sec, dict):
-        raise ScenarioError("route", "section is missing")
-    length = scn.quantity(sec, "length", "length", prefix="route.")
-    z0 = scn.quantity(sec, "start_elevation", "elevation", default=0.0, prefix="route.")
-    pts = []
-    for i, p in enumerate(sec.get("points", [])):
-        key = f"route.points[{i}]"
-        pts.append((p.get("name", f"point {i + 1}"),
-                    scn.quantity(p, "chainage", "length", prefix=f"{key}."),
-                    scn.quantity(p, "elevation", "elevation", prefix=f"{key}.")))
-    fits = tuple(scn.build_fitting(f, f"route.fittings[{i}]")
-                 for i, f in enumerate(sec.get("fittings", [])))
-    try:
-        return Route(length, tuple(pts), fits, z0, sec.get("start_name", "start"))
-    except HeadlineError as exc:
-        raise ScenarioError("route", str(exc)) from None
-
-
-def inputs(sc) -> SizingInputs:
-    """Read a line-sizing scenario into core inputs (SI)."""
-    doc = sc.doc
-    p_baro = scn.build_site(doc)
-    liquid = scn.build_liquid(doc)
-    T, _ = scn.build_temperatures(doc)
-    try:
-        state = liquid.state(T, p_baro)
-    except HeadlineError as exc:
-        raise ScenarioError("liquid", str(exc)) from None
-    s = doc.get("sizing")
-    if not isinstance(s, dict):
-        raise ScenarioError("sizing", "section is missing")
-    Qd = scn.quantity(s, "flow_design", "flow", prefix="sizing.")
-    Qmin = scn.quantity(s, "flow_min", "flow", default=Qd, prefix="sizing.")
-    Qmax = scn.quantity(s, "flow_max", "flow", default=Qd, prefix="sizing.")
-    standard = s.get("standard", "asme_b36_10m")
-    schedule = str(s.get("schedule", "40"))
-    sizes = tuple(str(x) for x in s.get("sizes", ())) or None
-    material = s.get("material", "carbon_steel")
-    condition = s.get("condition", "new")
-    try:
-        pipes = candidate_pipes(standard, schedule, material, condition, sizes)
-    except HeadlineError as exc:
-        raise ScenarioError("sizing", str(exc)) from None
-    if not pipes:
-        raise ScenarioError("sizing.schedule", f"no size of {standard} has schedule {schedule!r}")
-    duty = _duty(doc)
-    if sizes is None:
-        pipes = sizes_in_reach(pipes, Qd, duty)
-    try:
-        C = check_range("sizing.erosional_C", s.get("erosional_C", 100.0), "-", low=0.0,
-                        high=300.0)
-    except HeadlineError as exc:
-        raise ScenarioError("sizing.erosional_C", str(exc)) from None
-    return SizingInputs(
-        _route(doc), liquid, state, duty, Qd, Qmin, Qmax, standard, schedule, material,
-        condition, tuple(pipes),
-        scn.quantity(s, "end_pressure", "pressure", default=p_baro, p_baro=p_baro,
-                     prefix="sizing."),
-        p_baro, scn.quantity(s, "vapour_margin", "head", default=2.0, prefix="sizing."), C)
 
 
 def run(inp: SizingInputs) -> SizingResult:
