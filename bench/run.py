@@ -165,7 +165,8 @@ def main(argv=None):
     bench_system_curve(repeat)
     bench_band(repeat)
     bench_import()
-    for mod in ("bench_sizing", "bench_pumps", "bench_drain", "bench_record", "bench_panels"):
+    for mod in ("bench_sizing", "bench_pumps", "bench_drain", "bench_record", "bench_panels",
+                "bench_units"):
         if Path(__file__).with_name(f"{mod}.py").exists():
             importlib.import_module(mod).run(report, timeit, repeat)
     if a.json:

@@ -23,7 +23,8 @@ from kit.errors import DimensionError, HeadlineError, KeyTypeError, ScenarioErro
 from kit.inputs.schema import Key, Table, Tables
 
 __all__ = [
-    "SCHEMA_ID", "KINDS", "TOP_KEYS", "PROJECT", "SITE", "DISPLAY", "LIQUID", "PIPE", "FITTING",
+    "SCHEMA_ID", "KINDS", "TOP_KEYS", "PROJECT", "SITE", "DISPLAY", "LIQUID", "LIQUID_ONE_T",
+    "PIPE", "FITTING",
     "FITTINGS", "SEGMENT", "SEGMENTS", "LINE", "endpoint_table", "quantity", "get",
     "build_site", "build_liquid", "build_temperatures", "build_pipe", "build_fitting",
     "build_segment", "build_line", "build_endpoint",
@@ -121,6 +122,13 @@ LIQUID = Table("liquid", "the liquid and its temperature (one, or a min/max band
     Key("note", "text", "free text"),
 ), exclusive=((("temperature",), ("temperature_min", "temperature_max")),
               (("key", "concentration"), ("user",))))
+
+#: The liquid at one temperature (a drain-down is computed at one temperature).
+LIQUID_ONE_T = Table("liquid", "the liquid and its one temperature", keys=tuple(
+    k for k in LIQUID.keys if k.name not in ("temperature_min", "temperature_max")),
+    exclusive=((("key", "concentration"), ("user",)),),
+    hints={k: "a drain-down is computed at one temperature; give 'temperature'"
+           for k in ("temperature_min", "temperature_max")})
 
 
 def _check_pipe(doc, path, ctx):
@@ -220,7 +228,11 @@ LINE = (
 
 def endpoint_table(name: str, help_: str, required: bool = True) -> Table:
     """Schema of a source or destination endpoint (a liquid surface)."""
-    return Table(name, help_, required=required, keys=(
+    return Table(name, help_, required=required, keys=_ENDPOINT_KEYS,
+                 exclusive=((("level",), ("level_low", "level_high")),))
+
+
+_ENDPOINT_KEYS = (
         Key("name", "text", "its name"),
         Key("level", "quantity", "liquid surface elevation (fixed)", kind="elevation"),
         Key("level_low", "quantity", "lowest liquid surface elevation", kind="elevation"),
@@ -230,7 +242,7 @@ def endpoint_table(name: str, help_: str, required: bool = True) -> Table:
         Key("discharge", "choice", "submerged inlet, or free discharge (adds V²/2g)",
             choices=("submerged", "free"), default="submerged"),
         Key("note", "text", "free text"),
-    ), exclusive=((("level",), ("level_low", "level_high")),))
+)
 
 
 # ---------------------------------------------------------------- readers

@@ -106,6 +106,8 @@ class Table:
     variants: dict = field(default_factory=dict)
     check: Callable | None = None
     open_keys: bool = False
+    #: ``{key: reason}`` for keys a user may expect here that this table refuses on purpose.
+    hints: dict = field(default_factory=dict)
 
     def entry(self, name: str):
         for k in self.keys:
@@ -166,6 +168,9 @@ def _where(path: str) -> str:
 
 def _unknown(name: str, table, path: str, ctx) -> UnknownKeyError:
     full = f"{path}.{name}" if path else name
+    if name in getattr(table, "hints", {}):
+        return UnknownKeyError(full, f"is not a key of {_where(path)}: {table.hints[name]}",
+                               ctx.source)
     valid = [n for n in table.names]
     places = [p for p in ctx.index.get(name, []) if p != _strip_indices(path)]
     if places:

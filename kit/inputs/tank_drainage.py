@@ -36,7 +36,7 @@ from kit.inputs.tank_drainage_schema import ROOT
 
 __all__ = [
     "TANK_SHAPES", "SURFACES", "OUTLET_TYPES", "DrainInputs", "inputs", "drain_inputs",
-    "build_tank", "build_outlet", "head_of", "vent_of", "orifice_of",
+    "build_tank", "build_outlet", "head_of", "vent_of", "orifice_of", "wrap_errors",
 ]
 
 #: Scenario tank shapes -> (kit.core.tank shape, orientation).
@@ -91,7 +91,7 @@ def _number(sec: dict, name: str, key: str, default=None) -> float | None:
     return float(v)
 
 
-def _wrap(key: str, fn, *args, **kw):
+def wrap_errors(key: str, fn, *args, **kw):
     """Call ``fn`` and turn a kit error into a ScenarioError naming ``key``."""
     try:
         return fn(*args, **kw)
@@ -130,7 +130,7 @@ def _head(spec, key: str):
             raise ScenarioError(f"{key}.standard", "is for a torispherical head given without "
                                 "f and k")
         f, k = TORISPHERICAL_STANDARDS[std]
-    return _wrap(key, Head, kind, depth, ratio, f, k)
+    return wrap_errors(key, Head, kind, depth, ratio, f, k)
 
 
 def build_tank(doc: dict):
@@ -151,33 +151,33 @@ def build_tank(doc: dict):
                 raise ScenarioError(f"tank.{extra}", "is not used by a strapping table")
         levels = _quantities(sec, "levels", "elevation", "tank")
         volumes = _quantities(sec, "volumes", "volume", "tank")
-        return _wrap("tank.levels", Tank, "table", levels=tuple(levels),
+        return wrap_errors("tank.levels", Tank, "table", levels=tuple(levels),
                      volumes=tuple(volumes), name=name)
     for extra in ("levels", "volumes"):
         if extra in sec:
             raise ScenarioError(f"tank.{extra}", "is only for shape 'strapping_table'")
     D = scn.quantity(sec, "diameter", "diameter", prefix="tank.")
-    _wrap("tank.diameter", check_range, "tank diameter", D, "m", low=0.0, high=1000.0)
+    wrap_errors("tank.diameter", check_range, "tank diameter", D, "m", low=0.0, high=1000.0)
     if core_shape == "sphere":
         for extra in ("length", "bottom", "top", "heads"):
             if extra in sec:
                 raise ScenarioError(f"tank.{extra}", "is not used by a sphere")
-        return _wrap("tank", Tank, "sphere", "vertical", D, name=name)
+        return wrap_errors("tank", Tank, "sphere", "vertical", D, name=name)
     L = scn.quantity(sec, "length", "length", prefix="tank.")
-    _wrap("tank.length", check_range, "tank straight length", L, "m", low=0.0, high=1e4)
+    wrap_errors("tank.length", check_range, "tank straight length", L, "m", low=0.0, high=1e4)
     if orientation == "horizontal":
         for extra in ("bottom", "top"):
             if extra in sec:
                 raise ScenarioError(f"tank.{extra}", "is for a vertical tank; a horizontal "
                                     "tank takes 'heads' (both ends)")
         h = _head(sec.get("heads", "flat"), "tank.heads")
-        return _wrap("tank.heads", Tank, "cylinder", "horizontal", D, L, h, h, name=name)
+        return wrap_errors("tank.heads", Tank, "cylinder", "horizontal", D, L, h, h, name=name)
     both = sec.get("heads", "flat")
     bkey = "tank.bottom" if "bottom" in sec else "tank.heads"
     tkey = "tank.top" if "top" in sec else "tank.heads"
     bottom = _head(sec.get("bottom", both), bkey)
     top = _head(sec.get("top", both), tkey)
-    return _wrap(bkey, Tank, "cylinder", "vertical", D, L, bottom, top, name=name)
+    return wrap_errors(bkey, Tank, "cylinder", "vertical", D, L, bottom, top, name=name)
 
 
 def _quantities(sec: dict, name: str, kind: str, prefix: str) -> list[float]:
@@ -218,11 +218,11 @@ def _orifice(sec: dict, diameter: float | None = None, Cd: float | None = None,
     z = scn.quantity(sec, "elevation", "elevation", default=0.0, prefix="outlet.")
     dkey = "compare.outlet_diameter" if key == "compare" else "outlet.diameter"
     ckey = f"{key}.Cd"
-    _wrap(dkey, check_range, "orifice diameter", d, "m", low=0.0, high=10.0)
-    _wrap(ckey, check_range, "discharge coefficient Cd", Cd, "-", low=0.0, high=1.0)
-    _wrap("outlet.elevation", check_range, "orifice elevation", z, "m", low=0.0, high=1e4,
+    wrap_errors(dkey, check_range, "orifice diameter", d, "m", low=0.0, high=10.0)
+    wrap_errors(ckey, check_range, "discharge coefficient Cd", Cd, "-", low=0.0, high=1.0)
+    wrap_errors("outlet.elevation", check_range, "orifice elevation", z, "m", low=0.0, high=1e4,
           low_inclusive=True)
-    return _wrap(key, OrificeOutlet, d, Cd, z, name or str(sec.get("name", "orifice")))
+    return wrap_errors(key, OrificeOutlet, d, Cd, z, name or str(sec.get("name", "orifice")))
 
 
 def _segments(sec: dict, key: str, pipe_change: dict | None = None) -> tuple:
@@ -268,21 +268,21 @@ def _line_outlet(sec: dict, tank, p_atm: float, pipe_change: dict | None = None,
                                 f"{z_in + rise:.6g} m, not {z_out:.6g} m")
     z_out = z_in + rise
     ikey = "outlet.inlet_elevation" if has_in or not has_out else "outlet.discharge_elevation"
-    _wrap(ikey, check_range, "outlet line inlet elevation", z_in, "m",
+    wrap_errors(ikey, check_range, "outlet line inlet elevation", z_in, "m",
           low=tank.h_min, high=tank.h_max, low_inclusive=True)
     name = str(sec.get("name", "outlet line")) + suffix
-    line = _wrap("outlet", Line, name, segs, str(sec.get("start_station", "tank outlet")), z_in)
+    line = wrap_errors("outlet", Line, name, segs, str(sec.get("start_station", "tank outlet")), z_in)
     recv = (scn.quantity(sec, "receiver_level", "elevation", prefix="outlet.")
             if "receiver_level" in sec else None)
     p_recv = (scn.quantity(sec, "receiver_pressure", "pressure", p_baro=p_atm, prefix="outlet.")
               if "receiver_pressure" in sec else None)
     if recv is not None:
-        _wrap("outlet.receiver_level", check_range, "receiver level", recv, "m", low=z_out,
+        wrap_errors("outlet.receiver_level", check_range, "receiver level", recv, "m", low=z_out,
               high=1e4, low_inclusive=True)
     if p_recv is not None:
-        _wrap("outlet.receiver_pressure", check_range, "receiver pressure", p_recv, "Pa",
+        wrap_errors("outlet.receiver_pressure", check_range, "receiver pressure", p_recv, "Pa",
               low=0.0, high=1e8)
-    return _wrap("outlet", PipedOutlet, line, z_out, recv, p_recv)
+    return wrap_errors("outlet", PipedOutlet, line, z_out, recv, p_recv)
 
 
 def build_outlet(doc: dict, tank, p_atm: float, compare: bool = False):
@@ -348,7 +348,7 @@ class DrainInputs:
 
 def _level(sec, name, tank, key_prefix="drain.") -> float:
     z = scn.quantity(sec, name, "elevation", prefix=key_prefix)
-    _wrap(f"{key_prefix}{name}", check_range, name.replace("_", " "), z,
+    wrap_errors(f"{key_prefix}{name}", check_range, name.replace("_", " "), z,
           "m", low=tank.h_min, high=tank.h_max, low_inclusive=True)
     return z
 
@@ -367,7 +367,7 @@ def _levels_of_interest(sec: dict, tank, start: float, target: float) -> tuple:
         else:
             z = _parse(v, "elevation", key)
             label = str(v).strip()
-        _wrap(key, check_range, "level of interest", z, "m", low=target, high=start,
+        wrap_errors(key, check_range, "level of interest", z, "m", low=target, high=start,
               low_inclusive=True)
         if label in seen or label in ("start", "target"):
             raise ScenarioError(key, f"label {label!r} is used twice (or is 'start'/'target')")
@@ -386,10 +386,10 @@ def _vent(spec) -> Vent | None:
     Cd = _number(spec, "Cd", "drain.vent", 0.61)
     vac = scn.quantity(spec, "allowable_vacuum", "pressure_difference", default=250.0,
                        prefix="drain.vent.")
-    _wrap("drain.vent.diameter", check_range, "vent diameter", d, "m", low=0.0, high=10.0)
-    _wrap("drain.vent.Cd", check_range, "vent discharge coefficient Cd", Cd, "-", low=0.0,
+    wrap_errors("drain.vent.diameter", check_range, "vent diameter", d, "m", low=0.0, high=10.0)
+    wrap_errors("drain.vent.Cd", check_range, "vent discharge coefficient Cd", Cd, "-", low=0.0,
           high=1.0)
-    return _wrap("drain.vent", Vent, d, Cd, vac)
+    return wrap_errors("drain.vent", Vent, d, Cd, vac)
 
 
 def _surface(sec: dict, p_atm: float) -> tuple[str, float]:
@@ -407,10 +407,10 @@ def _surface(sec: dict, p_atm: float) -> tuple[str, float]:
                             "its pressure)")
     p = scn.quantity(sec, "surface_pressure", "pressure", p_baro=p_atm, prefix="drain.")
     if surface == "padded":
-        _wrap("drain.surface_pressure", check_range, "padded surface pressure", p, "Pa",
+        wrap_errors("drain.surface_pressure", check_range, "padded surface pressure", p, "Pa",
               low=p_atm, high=1e8)
     else:
-        _wrap("drain.surface_pressure", check_range, "vacuum surface pressure", p, "Pa",
+        wrap_errors("drain.surface_pressure", check_range, "vacuum surface pressure", p, "Pa",
               low=0.0, high=p_atm, high_inclusive=False)
     return surface, p
 

@@ -8,8 +8,8 @@
 from __future__ import annotations
 
 from kit.errors import KeyTypeError, ScenarioError
-from kit.inputs.common import DISPLAY, LINE, LIQUID, PROJECT, SITE, TOP_KEYS
-from kit.inputs.schema import Key, Table, Tables, _table
+from kit.inputs.common import DISPLAY, LINE, LIQUID_ONE_T, PROJECT, SITE, TOP_KEYS
+from kit.inputs.schema import Key, Table, _table
 
 __all__ = ["ROOT", "TANK", "DRAIN", "OUTLET", "COMPARE", "HEAD", "TANK_SHAPE_KEYS",
            "SURFACES", "OUTLET_TYPES"]
@@ -183,7 +183,7 @@ OUTLET = Table("outlet", "the outlet: an orifice in the tank, or a line of segme
         "absent: a free jet into air", kind="elevation"),
     Key("receiver_pressure", "quantity", "receiver surface pressure, gauge or absolute",
         kind="pressure"),
-) + tuple(k for k in LINE if k.name not in ("name", "note")) + (
+) + tuple(k for k in LINE if k.name not in ("name", "note", "start_elevation")) + (
     Key("note", "text", "free text"),
 ), variant="type", variants={
     "orifice": _ORIFICE,
@@ -211,5 +211,5 @@ COMPARE = Table("compare", "a what-if: the same drain with a second outlet size"
 
 ROOT = Table("tank_drainage", "A tank_drainage scenario: the time to drain a tank to a level "
              "through an orifice or an outlet line.", keys=TOP_KEYS + (
-    PROJECT, SITE, DISPLAY, LIQUID, TANK, DRAIN, OUTLET, COMPARE,
+    PROJECT, SITE, DISPLAY, LIQUID_ONE_T, TANK, DRAIN, OUTLET, COMPARE,
 ))

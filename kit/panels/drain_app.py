@@ -619,7 +619,7 @@ class DrainApp(widgets.VBox):
         base = self.source_scenario
         sc = base.copy() if base is not None else scn.Scenario(
             {"schema": scn.SCHEMA, "kind": "tank_drainage", "title": "tank drainage",
-             "site": {"barometric_pressure": exact_text(self.p_atm, "pressure")}})
+             "site": {"barometric_pressure": exact_text(self.p_atm, "pressure_abs")}})
         doc = sc.doc
         doc["liquid"] = liquid_doc(self.fluid, doc.get("liquid"))
         doc["tank"] = self._tank_doc(doc.get("tank") or {})

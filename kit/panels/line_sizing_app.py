@@ -617,7 +617,7 @@ class LineSizingApp(widgets.VBox):
         base = self.source_scenario
         sc = base.copy() if base is not None else scn.Scenario(
             {"schema": scn.SCHEMA, "kind": "line_sizing", "title": "line sizing",
-             "site": {"barometric_pressure": exact_text(self.p_baro, "pressure")}})
+             "site": {"barometric_pressure": exact_text(self.p_baro, "pressure_abs")}})
         doc = sc.doc
         doc["liquid"] = liquid_doc(self.fluid, doc.get("liquid"))
         s = dict(doc.get("sizing") or {})

@@ -78,7 +78,7 @@ def exact_text(value_si: float, kind: str, system: str = "SI", gauge: bool = Fal
         t = text_for(value_si, kind, system, digits, gauge, p_baro)
         if same_value(t, value_si, kind, p_baro):
             return t
-    unit = units.KINDS[kind][1] if kind != "pressure" else "Pa"
+    unit = "Pa(a)" if kind == "pressure" else units.KINDS[kind][0]
     return f"{float(value_si)!r} {unit}".strip()
 
 

@@ -390,7 +390,7 @@ def results_of(sc, s: PumpStudy) -> Results:
           min(s.system.static_head("min", T) for T in temps), "head")
     r.add("system.static_head.max", "static head, maximum",
           max(s.system.static_head("max", T) for T in temps), "head")
-    r.add("site.barometric_pressure", "barometric pressure", s.system.p_baro, "pressure")
+    r.add("site.barometric_pressure", "barometric pressure", s.system.p_baro, "pressure_abs")
     if s.required_flow is not None:
         r.add("duty.flow", "required flow", s.required_flow, "flow")
     for i, pump in enumerate(s.pumps):

@@ -116,11 +116,11 @@ from kit.inputs.tank_drainage import (
     SURFACES,
     TANK_SHAPES,
     DrainInputs,
-    _wrap,
     build_outlet,
     build_tank,
     drain_inputs,
     inputs,
+    wrap_errors,
 )
 from kit.results import Results
 
@@ -174,7 +174,7 @@ class DrainStudy:
 
 
 def _run(inp: DrainInputs, outlet, key: str) -> DrainResult:
-    return _wrap(key, drain, inp.tank, outlet, inp.state, inp.start, inp.target, inp.p_surface,
+    return wrap_errors(key, drain, inp.tank, outlet, inp.state, inp.start, inp.target, inp.p_surface,
                  inp.p_atm, inp.vent)
 
 
@@ -362,7 +362,7 @@ def results_of(s: DrainStudy, doc: dict | None = None) -> Results:
     r.add("liquid.density", "density", state.rho, "density")
     r.add("liquid.viscosity", "viscosity", state.mu, "viscosity")
     if state.pv is not None:
-        r.add("liquid.vapour_pressure", "vapour pressure", state.pv, "pressure")
+        r.add("liquid.vapour_pressure", "vapour pressure", state.pv, "pressure_abs")
     r.add("drain.start_level", "start level", inp.start, "elevation")
     r.add("drain.target_level", "target level", inp.target, "elevation")
     end = float(res.level[-1])

@@ -336,6 +336,6 @@ def test_temperature_range_refused():
     sc = _demo_with("liquid.temperature", None)
     sc.set("liquid.temperature_min", "20 degC")
     sc.set("liquid.temperature_max", "60 degC")
-    with raises_exactly(ScenarioError, r"scenario key 'liquid.temperature': a drain-down is "
-                        r"computed at one temperature"):
+    with raises_exactly(UnknownKeyError, r"scenario key 'liquid.temperature_min': is not a key "
+                        r"of \[liquid\]: a drain-down is computed at one temperature"):
         td.compute(sc)
