@@ -18,6 +18,8 @@ Example
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 from kit import units
 from kit.errors import DimensionError, HeadlineError, KeyTypeError, ScenarioError
 from kit.inputs.schema import Key, Table, Tables
@@ -25,7 +27,8 @@ from kit.inputs.schema import Key, Table, Tables
 __all__ = [
     "SCHEMA_ID", "KINDS", "TOP_KEYS", "PROJECT", "SITE", "DISPLAY", "LIQUID", "LIQUID_ONE_T",
     "PIPE", "FITTING",
-    "FITTINGS", "SEGMENT", "SEGMENTS", "LINE", "endpoint_table", "quantity", "get",
+    "FITTINGS", "SEGMENT", "SEGMENTS", "LINE", "INTEGRITY", "endpoint_table", "quantity", "get",
+    "IntegrityOptions", "build_integrity",
     "build_site", "build_liquid", "build_temperatures", "build_pipe", "build_fitting",
     "build_segment", "build_line", "build_endpoint",
 ]
@@ -245,6 +248,59 @@ _ENDPOINT_KEYS = (
 )
 
 
+def _grades():
+    from kit.core.rating import GRADES
+
+    return tuple(GRADES)
+
+
+def _compounds():
+    from kit.core.rating import COMPOUNDS
+
+    return tuple(COMPOUNDS)
+
+
+def _joints():
+    from kit.core.rating import JOINT_FACTORS
+
+    return tuple(JOINT_FACTORS)
+
+
+def _flange_classes():
+    from kit.core.rating import FLANGE_RATINGS
+
+    return tuple(FLANGE_RATINGS)
+
+
+def _anchorings():
+    from kit.core.surge import ANCHORINGS
+
+    return tuple(ANCHORINGS)
+
+
+INTEGRITY = Table("integrity", "pressure rating and water-hammer screening: the pipe's grade, "
+                  "allowances, flange class and the valve closure", keys=(
+    Key("grade", "choice", "metal pipe grade for the B31.3 allowable stress (default: the "
+        "material's usual grade, stated)", choices=_grades),
+    Key("compound", "choice", "plastic pipe compound for the pressure rating (default: the "
+        "material's usual compound, stated)", choices=_compounds),
+    Key("joint", "choice", "longitudinal weld joint of metal pipe (its quality factor E)",
+        choices=_joints),
+    Key("corrosion_allowance", "quantity", "corrosion and thread allowance of metal pipe",
+        kind="length", default="0 mm", low=0.0, high=0.02),
+    Key("flange_class", "choice", "ASME B16.5 flange class of the line (group 1.1)",
+        choices=_flange_classes),
+    Key("closure_time", "quantity", "effective closure time of the fastest valve (absent: "
+        "instantaneous, the Joukowsky rise)", kind="time", low=0.0, low_inclusive=False),
+    Key("anchoring", "choice", "how the pipe is restrained against axial movement (Korteweg "
+        "wave speed)", choices=_anchorings, default="anchored_throughout"),
+    Key("bulk_modulus", "quantity", "the liquid's bulk modulus (required for surge where the "
+        "property model has no speed of sound)", kind="pressure_difference", low=1e7,
+        high=2e10),
+    Key("note", "text", "free text"),
+), exclusive=((("grade",), ("compound",)),))
+
+
 # ---------------------------------------------------------------- readers
 
 
@@ -457,3 +513,36 @@ def build_endpoint(doc: dict, which: str, p_baro: float):
         return Endpoint(sec.get("name", which), lo, hi, p, sec.get("discharge", "submerged"))
     except HeadlineError as exc:
         raise _err(which, exc) from None
+
+
+@dataclass(frozen=True)
+class IntegrityOptions:
+    """The ``[integrity]`` table in SI (None where not given: the kit's stated default)."""
+
+    grade: str | None = None
+    compound: str | None = None
+    joint: str | None = None
+    corrosion_allowance: float = 0.0
+    flange_class: str | None = None
+    closure_time: float | None = None
+    anchoring: str = "anchored_throughout"
+    bulk_modulus: float | None = None
+
+
+def build_integrity(doc: dict) -> IntegrityOptions:
+    """The ``[integrity]`` options of a scenario (defaults where the table or a key is absent).
+
+    >>> build_integrity({"integrity": {"closure_time": "4 s"}}).closure_time
+    4.0
+    """
+    sec = doc.get("integrity") or {}
+    t = sec.get("closure_time")
+    K = sec.get("bulk_modulus")
+    return IntegrityOptions(
+        sec.get("grade"), sec.get("compound"), sec.get("joint"),
+        quantity(sec, "corrosion_allowance", "length", default=0.0, prefix="integrity."),
+        sec.get("flange_class"),
+        None if t is None else quantity(sec, "closure_time", "time", prefix="integrity."),
+        sec.get("anchoring", "anchored_throughout"),
+        None if K is None else quantity(sec, "bulk_modulus", "pressure_difference",
+                                        prefix="integrity."))

@@ -16,22 +16,30 @@ row 1 and the first data row is row 2 (blank lines still count, and are otherwis
 Method
 ------
 1. File level: at most :data:`MAX_BYTES` bytes of UTF-8 text (a UTF-8 byte-order mark at the
-   start is tolerated and dropped; UTF-16, NUL bytes and control characters are refused) and at
-   most :data:`MAX_ROWS` rows.
-2. Structure (refuses the whole list, :class:`~kit.errors.ScenarioError`): the header's names
-   must be known columns (an unknown one is refused with the nearest valid name by
-   :func:`difflib.get_close_matches` and the valid list), none repeated, the required ones
-   present; every data row must hold exactly as many values as the header has columns; a
-   quote left open (which would make the csv module swallow the rows after it into one field)
-   or a field spanning lines is refused with its row; a field over :data:`MAX_FIELD`
-   characters, an empty tag and a repeated tag (naming both rows) are refused.
-3. Values (per row): each cell is read with :func:`kit.units.parse` for its kind (the unit's
-   affine conversion cached per unit text, so a row costs a regular-expression split and a
-   multiply), range-checked, and each key checked against its registry
+   start is **tolerated** and dropped; UTF-16, other encodings and NUL bytes are refused) and
+   at most :data:`MAX_ROWS` data rows.
+2. Structure (refuses the whole list with a :class:`~kit.errors.ScenarioError` naming the
+   row): the header's names must be known columns (an unknown one is refused with the nearest
+   valid name by :func:`difflib.get_close_matches` and the valid list), none repeated, the
+   required ones present; every data row must hold exactly as many values as the header has
+   columns; a quote left open (which would make the csv module swallow the rows after it into
+   one field) or a field spanning lines is refused with its row; a field over
+   :data:`MAX_FIELD` characters, an empty tag, a control character in a tag and a repeated tag
+   (naming both rows) are refused.
+3. Values (per row): each cell is read with :func:`kit.units.parse`'s rules for its kind,
+   range-checked, and each key checked against its registry
    (:data:`kit.core.criteria.DUTY_CLASSES`, :data:`kit.core.pipes.STANDARDS` and its schedules,
    :data:`kit.core.roughness.ROUGHNESS`, :data:`kit.core.liquids.LIQUIDS`). A bad value makes
    that row a :class:`RowError` (its message names ``batch row N (tag T): column``) and the
    other rows go on; ``strict=True`` raises the first one instead.
+
+The work is column by column, so time is linear in the rows with a small constant: text without
+quotes is split on line ends and commas at once (the csv module reads quoted text); each
+distinct cell of a quantity column is split into number and unit by one regular-expression
+pass over the column, each distinct unit converted once through :func:`kit.units.parse` (every
+conversion here is affine, ``a + b·x``), and the ranges and registries checked with numpy and
+sets. Only a row that this fast reading doubts is read again cell by cell through
+:func:`kit.units.parse`, which gives its exact error (or accepts it).
 
 Example
 -------
@@ -175,10 +183,11 @@ class LineList:
     @cached_property
     def rows(self) -> tuple[LineRow, ...]:
         """The good rows as :class:`LineRow` objects, in row order."""
-        return tuple(map(LineRow, self.tag, self.row.tolist(), self.Q.tolist(), self.L.tolist(),
-                         self.rise.tolist(), self.T.tolist(), self.K.tolist(), self.duty,
-                         self.standard, self.schedule, self.material, self.condition,
-                         self.liquid, self.concentration))
+        with gc_paused():
+            return tuple(map(LineRow, self.tag, self.row.tolist(), self.Q.tolist(),
+                             self.L.tolist(), self.rise.tolist(), self.T.tolist(),
+                             self.K.tolist(), self.duty, self.standard, self.schedule,
+                             self.material, self.condition, self.liquid, self.concentration))
 
     def items(self) -> list:
         """Rows and row errors together, in row order."""
@@ -283,7 +292,8 @@ def decode_line_list(data: bytes, source: str = "batch") -> str:
                                 "cannot be read); save it as UTF-8 CSV") from None
 
 
-def read_line_list_file(path, *, key: str = "batch", strict: bool = False) -> LineList:
+def read_line_list_file(path, *, key: str = "batch", strict: bool = False,
+                        defaults: dict | None = None) -> LineList:
     """:func:`read_line_list` of a file, its size checked before it is read.
 
     Parameters
@@ -294,6 +304,8 @@ def read_line_list_file(path, *, key: str = "batch", strict: bool = False) -> Li
         Key path that messages start with [-]
     strict : bool
         Raise the first bad row's error instead of collecting row errors [-]
+    defaults : dict, optional
+        As for :func:`read_line_list` [-]
     """
     p = Path(path)
     try:
@@ -304,7 +316,7 @@ def read_line_list_file(path, *, key: str = "batch", strict: bool = False) -> Li
         data = p.read_bytes()
     except OSError as exc:
         raise ScenarioError(key, f"line list {p.name} cannot be read: {exc.strerror}") from None
-    return read_line_list(data, key=key, strict=strict)
+    return read_line_list(data, key=key, strict=strict, defaults=defaults)
 
 
 def _check_text(text: str, key: str) -> str:
@@ -321,6 +333,18 @@ def _check_text(text: str, key: str) -> str:
     if n > 2 * MAX_ROWS + 2:  # \r\n counted twice; refined below on the rows themselves
         raise ScenarioFileError(key, f"the line list has more than {MAX_ROWS:,} rows")
     return text
+
+
+def _defaults(given) -> dict:
+    """:data:`DEFAULTS` with the caller's replacements (optional columns only)."""
+    if not given:
+        return DEFAULTS
+    for c, v in given.items():
+        if c not in DEFAULTS or not isinstance(v, str) or not v.strip():
+            raise ScenarioError("batch defaults", f"{c!r}: {v!r} is not a default the line "
+                                f"list takes (columns with defaults: {', '.join(DEFAULTS)}; "
+                                "each default is non-empty text)")
+    return {**DEFAULTS, **{c: v.strip() for c, v in given.items()}}
 
 
 # ------------------------------------------------------------------ structure
@@ -398,11 +422,13 @@ def _table(text: str, key: str) -> tuple[int, list[str], list[int], list[list[st
         longest = max((sum(map(len, r)) for r in recs), default=0)
         columns = [list(c) for c in zip(*recs, strict=True)] if recs else [[]] * len(head[1])
         return head[0], head[1], rows, columns, longest
-    lines = text.replace("\r\n", "\n").replace("\r", "\n").split("\n")
+    if "\r" in text:
+        text = text.replace("\r\n", "\n").replace("\r", "\n")
+    lines = text.split("\n")
     if lines and lines[-1] == "":
         lines.pop()
     if ("\n\n" in text or "\n," in text or ",\n" in text or "\n " in text or "\n\t" in text
-            or "\r" in text or text[:1] in (",", " ", "\t", "\n")):  # there may be blank rows
+            or text[:1] in (",", " ", "\t", "\n")):  # there may be blank rows
         rows = [i + 1 for i, ln in enumerate(lines) if ln.strip(" \t,")]
         lines = [lines[i - 1] for i in rows]
     else:
@@ -435,7 +461,8 @@ def _too_long(cells, row: int, key: str) -> None:
 # ------------------------------------------------------------------ values
 
 class _Reader:
-    """Per-list caches of cell readings (same text, same result or same error)."""
+    """The cell-by-cell reading of one row (the reference the column-wise reading must
+    match), with per-list caches of the registry look-ups."""
 
     def __init__(self):
         self.cache: dict = {}
@@ -506,13 +533,13 @@ class _Reader:
         return key, x
 
 
-def _row(rd: _Reader, cells: dict, row: int, key: str) -> LineRow:
+def _row(rd: _Reader, cells: dict, row: int, key: str, defaults=DEFAULTS) -> LineRow:
     tag = cells["tag"]
     at = f"{key} row {row} (tag {tag}): "
 
     def get(col):
         v = cells.get(col, "")
-        return v if v else DEFAULTS.get(col, "")
+        return v if v else defaults.get(col, "")
 
     Q = rd.quantity(get("flow"), "flow", at + "flow")
     L = rd.quantity(get("length"), "length", at + "length")
@@ -532,7 +559,8 @@ def _row(rd: _Reader, cells: dict, row: int, key: str) -> LineRow:
                    liquid, conc)
 
 
-def read_line_list(text, *, key: str = "batch", strict: bool = False) -> LineList:
+def read_line_list(text, *, key: str = "batch", strict: bool = False,
+                   defaults: dict | None = None) -> LineList:
     """Read a CSV line list strictly into typed rows in SI (see the module's method).
 
     Parameters
@@ -543,6 +571,9 @@ def read_line_list(text, *, key: str = "batch", strict: bool = False) -> LineLis
         Key path that every message starts with (``batch row 7 (tag P-104): flow``) [-]
     strict : bool
         Raise the first bad row's error instead of collecting it as a :class:`RowError` [-]
+    defaults : dict, optional
+        Texts replacing some of :data:`DEFAULTS` for absent columns and empty cells, e.g.
+        ``{"temperature": "60 degF"}`` for the scenario's temperature [-]
 
     Returns
     -------
@@ -568,7 +599,7 @@ def read_line_list(text, *, key: str = "batch", strict: bool = False) -> LineLis
         raise ScenarioError(key, f"the line list must be CSV text, not {type(text).__name__}")
     text = _check_text(text, key)
     with gc_paused():
-        return _read(text, key, strict)
+        return _read(text, key, strict, _defaults(defaults))
 
 
 @contextmanager
@@ -585,7 +616,7 @@ def gc_paused():
             gc.enable()
 
 
-def _read(text: str, key: str, strict: bool) -> LineList:
+def _read(text: str, key: str, strict: bool, defaults: dict) -> LineList:
     hrow, hcells, rownums, columns, longest = _table(text, key)
     _too_long(hcells, hrow, key)
     cols = _header(hcells, hrow, key)
@@ -599,7 +630,7 @@ def _read(text: str, key: str, strict: bool) -> LineList:
     if longest > MAX_FIELD:
         _check_lengths(data, rownums, key)
     _check_tags(data["tag"], rownums, key)
-    return _read_columns(data, cols, rownums, key, strict)
+    return _read_columns(data, cols, rownums, key, strict, defaults)
 
 
 def _check_shape(rownums, lens: list[int], ncol: int, hrow: int, key: str) -> None:
@@ -656,22 +687,30 @@ _NUM_UNIT = re.compile(r"^(?:([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*([^\n
 _NUM_ONLY = re.compile(r"^(?:([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)|([^\n]*))$", re.M)
 
 
+def _distinct(cells: list[str]) -> tuple[list[str], np.ndarray]:
+    """The distinct cells (first-seen order) and each cell's index among them."""
+    uniq = {u: i for i, u in enumerate(dict.fromkeys(cells))}
+    return list(uniq), np.fromiter(map(uniq.__getitem__, cells), np.intp, len(cells))
+
+
 def _column_quantity(cells: list[str], col: str) -> tuple[np.ndarray, np.ndarray]:
     """SI values of a quantity column and a mask of the cells the fast path did not accept
-    (those rows are read again one by one for their exact error)."""
+    (those rows are read again one by one for their exact error). Each distinct cell is
+    read once."""
+    cells, code = _distinct(cells)
     kind = _KIND[col]
     n = len(cells)
     found = _NUM_UNIT.findall("\n".join(cells))
     if len(found) != n:  # not one match per cell: read every cell one by one
-        return np.full(n, np.nan), np.ones(n, bool)
+        return np.full(len(code), np.nan), np.ones(len(code), bool)
     nums, unit_text, _ = zip(*found, strict=True) if n else ((), (), ())
     x = np.array([v or "nan" for v in nums] if "" in nums else nums, dtype=float)
-    codes = {u: i for i, u in enumerate(dict.fromkeys(unit_text))}
-    code = np.fromiter(map(codes.__getitem__, unit_text), np.intp, n)
-    conv = [_affine(u, kind) if u else None for u in codes]
+    ucode = {u: i for i, u in enumerate(dict.fromkeys(unit_text))}
+    uidx = np.fromiter(map(ucode.__getitem__, unit_text), np.intp, n)
+    conv = [_affine(u, kind) if u else None for u in ucode]
     a = np.array([c[0] if c else np.nan for c in conv])
     b = np.array([c[1] if c else np.nan for c in conv])
-    value = a[code] + b[code] * x if n else x
+    value = a[uidx] + b[uidx] * x if n else x
     bad = ~np.isfinite(value)
     limit = getattr(units, "MAX_TEXT", None)
     if limit is not None:
@@ -681,20 +720,21 @@ def _column_quantity(cells: list[str], col: str) -> tuple[np.ndarray, np.ndarray
         lo, hi, inc = rng
         with np.errstate(invalid="ignore"):
             bad |= ~(((value > lo) | ((value == lo) if inc else False)) & (value <= hi))
-    return value, bad
+    return value[code], bad[code]
 
 
 def _column_plain(cells: list[str], col: str) -> tuple[np.ndarray, np.ndarray]:
+    cells, code = _distinct(cells)
     n = len(cells)
     found = _NUM_ONLY.findall("\n".join(cells))
     if len(found) != n:
-        return np.full(n, np.nan), np.ones(n, bool)
+        return np.full(len(code), np.nan), np.ones(len(code), bool)
     nums = [v for v, _ in found]
     x = np.array([v or "nan" for v in nums] if "" in nums else nums, dtype=float) if n \
         else np.empty(0)
     lo, hi, _ = RANGES[col]
     with np.errstate(invalid="ignore"):
-        return x, ~((x >= lo) & (x <= hi))
+        return x[code], ~((x >= lo) & (x <= hi))[code]
 
 
 def _column_choice(cells: list[str], choices) -> set[int]:
@@ -704,10 +744,11 @@ def _column_choice(cells: list[str], choices) -> set[int]:
     return {i for i, v in enumerate(cells) if v not in valid}
 
 
-def _read_columns(data: dict, cols, rownums, key: str, strict: bool) -> LineList:
+def _read_columns(data: dict, cols, rownums, key: str, strict: bool,
+                  defaults: dict) -> LineList:
     n = len(rownums)
     written = dict(data)  # the cells as written, for reading a doubted row again
-    for c, d in DEFAULTS.items():  # absent columns and empty cells take their default
+    for c, d in defaults.items():  # absent columns and empty cells take their default
         if c not in data:
             data[c] = [d] * n
         elif "" in data[c]:
@@ -750,7 +791,7 @@ def _read_columns(data: dict, cols, rownums, key: str, strict: bool) -> LineList
     for i in sorted(badset):  # the exact error of each row: read it again cell by cell
         cells = {c: v[i] for c, v in written.items()}
         try:
-            fixed[i] = _row(rd, cells, rownums[i], key)
+            fixed[i] = _row(rd, cells, rownums[i], key, defaults)
         except HeadlineError as exc:
             if strict:
                 raise

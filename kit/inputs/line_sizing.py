@@ -24,6 +24,7 @@ from kit.core.criteria import DUTY_CLASSES, DutyClass
 from kit.core.sizing import Route
 from kit.errors import HeadlineError, ScenarioError, check_range
 from kit.inputs import common as scn
+from kit.inputs.common import IntegrityOptions
 from kit.inputs.line_sizing_schema import ROOT
 
 __all__ = ["SizingInputs", "inputs", "candidate_pipes", "sizes_in_reach", "candidates",
@@ -50,6 +51,7 @@ class SizingInputs:
     p_baro: float
     vapour_margin: float
     erosional_C: float
+    integrity: IntegrityOptions = IntegrityOptions()
 
 
 def edited_duty(key: str, note: str, **limits) -> DutyClass:
@@ -95,11 +97,20 @@ def candidate_pipes(standard, schedule, material, condition, sizes=None) -> tupl
     return tuple(out)
 
 
+#: Larger sizes kept beyond the velocity reach: a viscous liquid's pressure drop can call for a
+#: pipe whose velocity is below the duty's range (common practice, no source).
+EXTRA_LARGER_SIZES = 3
+
+
 def sizes_in_reach(pipes, Q: float, duty: DutyClass) -> tuple:
-    """The pipes whose design velocity is within reach of the duty's range
-    (a quarter of ``v_min`` to 2.5 × ``v_max``); all of them if none is."""
-    keep = tuple(p for p in pipes if 0.25 * duty.v_min <= Q / p.area <= 2.5 * duty.v_max)
-    return keep or tuple(pipes)
+    """The pipes whose design velocity is within reach of the duty's range (a quarter of
+    ``v_min`` to 2.5 × ``v_max``) and the next :data:`EXTRA_LARGER_SIZES` larger ones; all of
+    them if none is in reach. ``pipes`` are smallest first."""
+    pipes = tuple(pipes)
+    idx = [i for i, p in enumerate(pipes) if 0.25 * duty.v_min <= Q / p.area <= 2.5 * duty.v_max]
+    if not idx:
+        return pipes
+    return pipes[idx[0]:idx[-1] + 1 + EXTRA_LARGER_SIZES]
 
 
 def route_of(doc) -> Route:
@@ -177,6 +188,7 @@ def inputs(sc) -> SizingInputs:
         condition, tuple(pipes),
         scn.quantity(s, "end_pressure", "pressure", default=p_baro, p_baro=p_baro,
                      prefix="sizing."),
-        p_baro, scn.quantity(s, "vapour_margin", "head", default=2.0, prefix="sizing."), C)
+        p_baro, scn.quantity(s, "vapour_margin", "head", default=2.0, prefix="sizing."), C,
+        scn.build_integrity(doc))
 
 

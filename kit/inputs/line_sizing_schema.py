@@ -8,7 +8,16 @@ True
 from __future__ import annotations
 
 from kit.errors import KeyTypeError, ScenarioError
-from kit.inputs.common import DISPLAY, FITTINGS, LIQUID, PIPE, PROJECT, SITE, TOP_KEYS
+from kit.inputs.common import (
+    DISPLAY,
+    FITTINGS,
+    INTEGRITY,
+    LIQUID,
+    PIPE,
+    PROJECT,
+    SITE,
+    TOP_KEYS,
+)
 from kit.inputs.schema import Key, Table, Tables
 
 __all__ = ["ROOT", "SIZING", "CRITERIA", "ROUTE", "BATCH", "BATCH_TEXT_MAX"]
@@ -116,5 +125,5 @@ BATCH = Table("batch", "a line list sized in one go (CSV beside the scenario, or
 
 ROOT = Table("line_sizing", "A line_sizing scenario: which size of a pipe family meets a "
              "duty's velocity and pressure-drop criteria along a route.", keys=TOP_KEYS + (
-    PROJECT, SITE, DISPLAY, LIQUID, SIZING, CRITERIA, ROUTE, BATCH,
+    PROJECT, SITE, DISPLAY, LIQUID, SIZING, CRITERIA, ROUTE, BATCH, INTEGRITY,
 ))

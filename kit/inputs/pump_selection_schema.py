@@ -10,6 +10,7 @@ from __future__ import annotations
 from kit.errors import ScenarioError
 from kit.inputs.common import (
     DISPLAY,
+    INTEGRITY,
     LINE,
     LIQUID,
     PROJECT,
@@ -103,7 +104,7 @@ ROOT = Table("pump_selection", "A pump_selection scenario: candidate pumps again
     endpoint_table("destination", "the liquid surface the pump delivers to"),
     Table("suction", "the suction line, source to pump", keys=LINE),
     Table("discharge", "the discharge line, pump to destination", keys=LINE, required=True),
-    DUTY, OPERATION,
+    DUTY, OPERATION, INTEGRITY,
     Tables("pumps", PUMP, "candidate pumps ([[pumps]] blocks)", required=True, min_items=1,
            max_items=20),
 ))

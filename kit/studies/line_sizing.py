@@ -37,7 +37,7 @@ from __future__ import annotations
 import csv
 import io
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cached_property, lru_cache
 from pathlib import Path
 
 import numpy as np
@@ -57,6 +57,7 @@ from kit.inputs.line_sizing import (
     sizes_in_reach,
 )
 from kit.results import Results
+from kit.studies.integrity import METHODS as INTEGRITY_METHODS
 
 __all__ = ["SizingInputs", "SizingStudy", "inputs", "study", "run", "compute", "size_batch",
            "read_line_list", "candidate_pipes", "sizes_in_reach", "BatchRow", "LINE_LIST_COLUMNS",
@@ -79,12 +80,35 @@ class SizingStudy:
         r = self.result.recommended
         return None if r is None else self.result.candidates[r]
 
+    @cached_property
+    def integrity(self) -> dict:
+        """Pressure rating and water-hammer screen of every computed candidate, by nominal size
+        (:func:`kit.studies.integrity.screen_line`; computed on first use)."""
+        return {c.pipe.nominal: integrity_of(self.inputs, c) for c in self.result.candidates
+                if not c.error}
+
     def index_of(self, nominal: str) -> int | None:
         """Index of the candidate of nominal size ``nominal`` (None if absent)."""
         for i, c in enumerate(self.result.candidates):
             if c.pipe.nominal == nominal:
                 return i
         return None
+
+
+def integrity_of(inp: SizingInputs, c):
+    """Rating and surge screen of one candidate: the highest of the running inlet pressure,
+    the standing column from the route's end down to its lowest point (at the end pressure),
+    and the closure surge at the design velocity over the route length."""
+    from kit.studies.integrity import screen_line
+
+    r = inp.route
+    zs = [r.start_elevation] + [p[2] for p in r.points]
+    z_end, z_low = zs[-1], min(zs)
+    st = inp.state
+    return screen_line(
+        f"NPS {c.pipe.nominal} ({c.pipe.label})", c.pipe, inp.liquid, st.T, inp.p_baro, st.pv,
+        length=r.length, velocity=c.velocity, running_pressure=max(c.p_start, inp.p_baro),
+        opts=inp.integrity, standing=(z_end - z_low, inp.p_end), rho=st.rho)
 
 
 def run(inp: SizingInputs) -> SizingResult:
@@ -115,8 +139,18 @@ def candidate_rows(st: SizingStudy) -> list[dict]:
             "dp_per_m": c.dp_per_m, "head_loss": c.head_loss, "p_start": c.p_start,
             "lowest": c.p_lowest, "lowest_station": c.lowest_station,
             "verdict": c.verdict, "governing": c.governing,
-            "mark": "◀ recommended" if i == rec else ""})
+            "mark": "◀ recommended" if i == rec else "", **_integrity_row(st, c)})
     return rows
+
+
+def _integrity_row(st: SizingStudy, c) -> dict:
+    s = st.integrity.get(c.pipe.nominal) if not c.error else None
+    if s is None:
+        return {"p_max": float("nan"), "p_allow": float("nan"), "surge_rise": float("nan"),
+                "integrity": ""}
+    return {"p_max": s.p_max, "p_allow": float("nan") if s.rating is None else s.rating.P_allow,
+            "surge_rise": float("nan") if s.surge_rise is None else s.surge_rise,
+            "integrity": s.verdict}
 
 
 # ------------------------------------------------------------------ batch
@@ -314,6 +348,15 @@ def compute(sc) -> Results:
         r.add(f"size.{nom}.velocity", f"NPS {nom}: velocity", c.velocity, "velocity")
         r.add(f"size.{nom}.dp", f"NPS {nom}: pressure drop", c.dp_per_m, "pressure_per_length")
         r.add(f"size.{nom}.head_loss", f"NPS {nom}: head loss", c.head_loss, "head")
+        scr = st.integrity[nom]
+        r.add(f"size.{nom}.max_pressure", f"NPS {nom}: highest pressure ({scr.governing})",
+              scr.p_max, "pressure")
+        if scr.rating is not None:
+            r.add(f"size.{nom}.rated_pressure", f"NPS {nom}: maximum allowable pressure "
+                  "(gauge)", scr.rating.P_allow, "pressure_difference")
+        if scr.surge_rise is not None:
+            r.add(f"size.{nom}.surge_rise", f"NPS {nom}: surge rise at the design velocity",
+                  scr.surge_rise, "pressure_difference")
     r.tables["candidates"] = candidate_rows(st)
     if res.recommended is not None:
         c = res.candidates[res.recommended]
@@ -325,6 +368,7 @@ def compute(sc) -> Results:
         r.add("recommended.lowest_pressure", f"recommended: lowest pressure ({c.lowest_station})",
               c.p_lowest - inp.p_baro, "pressure_difference")
         r.findings += list(c.findings)
+        r.findings += list(st.integrity[c.pipe.nominal].findings)
     text = batch_text(sc)
     if text is not None:
         duties = dict(DUTY_CLASSES)
@@ -336,6 +380,8 @@ def compute(sc) -> Results:
                 r.add(f"batch.{x.tag}.bore", f"line {x.tag}: bore", x.bore, "diameter")
     r.method("Pipe friction", FRICTION_METHOD["name"] + "; " + " ".join(FRICTION_METHOD["references"]))
     r.method("Sizing criteria", f"{inp.duty.label}: {inp.duty.source}")
+    for name, text_ in INTEGRITY_METHODS:
+        r.method(name, text_)
     r.method("Erosional velocity", f"API RP 14E (1991), C = {inp.erosional_C:g}")
     r.method("Pipe dimensions", "ASME B36.10M / B36.19M and the other tables of fluids.piping")
     r.method("Fittings", "kit.core.fittings: Crane TP-410 (2009) valves, Rennels & Hudson (2012) "
