@@ -86,6 +86,8 @@ class OutOfRangeError(InputError):
                  low_inclusive: bool = False, high_inclusive: bool = True):
         self.low = low
         self.high = high
+        self.low_inclusive = low_inclusive
+        self.high_inclusive = high_inclusive
         u = f" {unit}" if unit else ""
         if low is not None and high is not None:
             reason = f"must be between {_num(low)} and {_num(high)}{u}"

@@ -24,7 +24,6 @@ Exit codes: 0 done; 1 a cell failed, the kernel died or timed out, or no record 
 
 from __future__ import annotations
 
-import argparse
 import os
 import sys
 import time
@@ -200,15 +199,33 @@ def run_notebook(notebook, scenario_path, out_dir, *, timeout: float = 600.0,
     else:
         outcome.code = 1
         outcome.message = (f"{nb_path.name} ran but wrote no record {rec_json.name} into {out} "
-                           "(its last section must call kit.record.write_record when "
-                           "HEADLINE_RECORD_DIR is set)")
+                           "(its last section must call kit.record.save_record, which "
+                           "writes into HEADLINE_RECORD_DIR when it is set)")
     return outcome
 
 
 def run_main(argv=None) -> int:
-    """``python -m kit run SCENARIO.toml --out DIR [--notebook NB]``; returns the exit code."""
-    ap = argparse.ArgumentParser(
-        prog="python -m kit run",
+    """``headline run SCENARIO.toml --out DIR [--notebook NB]``; returns the exit code.
+
+    Bad arguments (unreadable scenario, unusable ``--out``, missing notebook) are one line
+    ``headline: run ... — why`` on stderr and exit code 2.
+    """
+    from kit.cli import CliError, say_error
+
+    try:
+        return _run(argv)
+    except CliError as exc:
+        say_error(exc.what, exc.why)
+        return exc.code
+
+
+def _run(argv) -> int:
+    from kit.__main__ import load_scenario
+    from kit.cli import CliError, Parser, output_folder, say_error
+    from kit.errors import HeadlineError
+
+    ap = Parser(
+        prog="headline run",
         description="Execute the scenario's notebook headless and write the executed notebook, "
                     "its HTML and the record (HTML + JSON) into a folder.",
         epilog="exit codes: 0 done; 1 a cell failed or no record was written; 2 bad arguments")
@@ -219,18 +236,23 @@ def run_main(argv=None) -> int:
     ap.add_argument("--timeout", type=float, default=600.0, help="per-cell timeout [s]")
     ap.add_argument("--quiet", action="store_true", help="no progress lines")
     a = ap.parse_args(argv)
-    from kit import scenario as scn
-    from kit.errors import HeadlineError
-
+    if not (a.timeout > 0 and a.timeout < float("inf")):
+        raise CliError("run --timeout", f"must be a finite number of seconds above 0, not {a.timeout}")
+    sc = load_scenario(a.scenario, "run")
     try:
-        sc = scn.load(a.scenario)
         nb = Path(a.notebook) if a.notebook else notebook_for(sc.kind)
     except HeadlineError as exc:
-        print(f"error: {exc}", file=sys.stderr)
-        return 2
-    outcome = run_notebook(nb, a.scenario, a.out, timeout=a.timeout, quiet=a.quiet)
+        raise CliError(f"run {a.scenario!r}", str(exc)) from None
+    if not nb.is_file():
+        raise CliError("run", f"notebook {nb} not found (set HEADLINE_NOTEBOOKS to the "
+                       "notebooks folder, or pass --notebook)")
+    out = output_folder(a.out)
+    outcome = run_notebook(nb, a.scenario, out, timeout=a.timeout, quiet=a.quiet)
     if not outcome.ok:
-        print(f"error: {outcome.message}", file=sys.stderr)
+        first, *more = outcome.message.splitlines() or [""]
+        say_error(f"run {Path(a.scenario).name!r}", first)
+        for line in more:
+            print(f"  {line}", file=sys.stderr)
         return outcome.code
     print(f"done in {outcome.elapsed:.1f} s; wrote:", file=sys.stderr)
     for p in (outcome.notebook, outcome.notebook_html, outcome.record_html, outcome.record_json):

@@ -169,9 +169,12 @@ def loads(text: str, source: str = "<string>") -> Scenario:
 
     if isinstance(text, bytes):
         text = decode(text, source)
-    if len(text) > MAX_BYTES:
-        raise ScenarioFileError("(file)", f"is {len(text):,} characters; a scenario file may "
-                                f"hold at most {MAX_BYTES:,}", source)
+    from kit.inputs.line_sizing_schema import BATCH_TEXT_MAX
+
+    if len(text) > MAX_BYTES + BATCH_TEXT_MAX:  # a record carries its line list inline
+        raise ScenarioFileError("(file)", f"is {len(text):,} characters; a scenario with its "
+                                f"line list inline may hold at most "
+                                f"{MAX_BYTES + BATCH_TEXT_MAX:,}", source)
     if text.startswith("\ufeff"):
         text = text[1:]
     try:

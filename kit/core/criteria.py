@@ -17,7 +17,7 @@ import math
 from dataclasses import dataclass
 
 from kit.core.findings import Finding, Severity
-from kit.errors import check_range
+from kit.errors import InputError, check_range
 
 __all__ = ["DutyClass", "DUTY_CLASSES", "erosional_velocity", "erosional_findings",
            "MARGINAL_FRACTION"]
@@ -33,6 +33,11 @@ class DutyClass:
 
     Below ``v_min`` is a CHECK (oversized line, settling of solids, air not swept); above
     ``v_max`` or ``dp_max`` is a FAIL; within 10 % of an upper limit is a CHECK.
+
+    ``erosional_applies`` says whether the service calls for the API RP 14E erosional
+    velocity as a limit (two-phase or sand/solids-laden flow). False for the clean
+    single-phase liquid duties here: the erosional velocity is then reported for
+    information only (never a FAIL or CHECK).
     """
 
     key: str
@@ -41,6 +46,7 @@ class DutyClass:
     v_max: float
     dp_max: float
     source: str = _SRC
+    erosional_applies: bool = False
 
     def __post_init__(self):
         check_range(f"minimum velocity of '{self.key}'", self.v_min, "m/s", low=0.0, high=20.0,
@@ -49,6 +55,9 @@ class DutyClass:
                     high=50.0)
         check_range(f"maximum pressure drop of '{self.key}'", self.dp_max, "Pa/m", low=0.0,
                     high=1e6)
+        if not isinstance(self.erosional_applies, bool):
+            raise InputError(f"erosional_applies of '{self.key}'", self.erosional_applies,
+                             "must be true or false")
 
     def check(self, subject: str, V: float, dp_per_m: float) -> list[Finding]:
         """Findings for one velocity [m/s] and pressure drop per length [Pa/m]."""
@@ -125,9 +134,26 @@ def erosional_velocity(rho: float, C: float = 100.0) -> float:
     return C / math.sqrt(rho_lb_ft3) * 0.3048
 
 
-def erosional_findings(subject: str, V: float, rho: float, C: float = 100.0) -> list[Finding]:
-    """FAIL above the API RP 14E erosional velocity, CHECK within 10 % of it, else PASS."""
+def erosional_findings(subject: str, V: float, rho: float, C: float = 100.0,
+                       applies: bool = True) -> list[Finding]:
+    """The API RP 14E erosional velocity as a limit, or for information.
+
+    ``applies=True`` (two-phase or solids-laden service): FAIL above it, CHECK within 10 %,
+    else PASS. ``applies=False`` (clean single-phase liquid): always PASS, the rule words
+    saying it is informational — RP 14E is written for two-phase production piping, and
+    applying it as a limit to a clean liquid is not its use.
+
+    >>> erosional_findings("L1", 5.0, 998.2, applies=False)[0].severity.value
+    'pass'
+    """
     Ve = erosional_velocity(rho, C)
+    if not applies:
+        above = "above" if V > Ve else "below"
+        return [Finding(Severity.PASS, subject, "velocity (erosional, information)", V, "m/s",
+                        f"information: RP 14E Ve = {Ve:.2f} m/s (C = {C:g})",
+                        f"erosional velocity for information only ({above} Ve): API RP 14E "
+                        "applies to two-phase and sand-laden service, not to a clean "
+                        "single-phase liquid; the duty's velocity range governs", _API_14E)]
     if V > Ve:
         sev = Severity.FAIL
     elif V > Ve * (1 - MARGINAL_FRACTION):

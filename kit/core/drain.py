@@ -43,8 +43,18 @@ Target not reached (FAIL, with the stop level and its cause), vortexing at low s
 (CHECK, Hydraulic Institute guideline), laminar or transitional flow in the outlet (CHECK —
 normal near the end of a gravity drain; friction is re-evaluated at each level), a sharp
 orifice at low Re (CHECK), vent capacity against the peak drain rate (PASS / CHECK / FAIL),
-padded or vacuum surface (CHECK), and the lowest pressure in an outlet line against vapour
-pressure and atmosphere over the drain (siphoning legs; :func:`kit.core.line.vapour_findings`).
+padded or vacuum surface (CHECK), the lowest pressure in an outlet line against vapour
+pressure and atmosphere over the drain (siphoning legs; :func:`kit.core.line.vapour_findings`),
+fitting rows used below the Re range of their K method, and:
+
+- **siphon limit** (:data:`SIPHON_MODEL`): where the full-pipe flow would take a station of
+  the line below vapour pressure (+ ``crest_margin``), the flow is held at the value that
+  keeps it there (FAIL finding, "level reached" at most CHECK, ``siphon_limited``); where
+  even zero flow cannot hold the column the siphon breaks and the drain stops (FAIL,
+  ``siphon_broken``). No absolute pressure below vapour pressure is ever reported as a flow.
+- **asymptotic stop** (:data:`ASYMPTOTE_RULE`): a laminar approach to a stop level takes
+  infinite time; the history ends a stated offset short of it and says so (``asymptotic``,
+  ``end_offset``, ``time_note``).
 
 Example
 -------
@@ -71,12 +81,43 @@ __all__ = [
     "P_ATM", "ORIFICE_CD", "DischargeCoefficient", "orifice_cd", "OrificeOutlet",
     "PipedOutlet", "Vent", "DrainResult", "drain", "orifice_flow", "piped_flow",
     "DRAIN_METHOD", "SUBMERGENCE_RULE", "min_submergence", "vent_pressure_drop",
+    "SIPHON_MODEL", "ASYMPTOTE_RULE", "T_AIR_DEFAULT", "station_pressures",
 ]
 
 #: Standard atmosphere [Pa] (ISO 2533).
 P_ATM = 101325.0
 _R = 8.314462618          # J/(mol K), CODATA 2018
 _M_AIR = 0.0289647        # kg/mol, dry air (US Standard Atmosphere 1976)
+#: Default air temperature at the vent [K] when none is given (20 °C; common practice, no
+#: source — give the site's ambient temperature). Vent air density is taken at the *air*
+#: temperature, not the liquid's.
+T_AIR_DEFAULT = 293.15
+
+#: The siphon model (stated, and shown in the record).
+SIPHON_MODEL = {
+    "name": "vapour-limited siphon: the flow is the smaller of the full-pipe flow and the "
+            "flow that holds the lowest-pressure station at vapour pressure (plus an optional "
+            "margin); the siphon breaks (flow stops) where even zero flow cannot hold it",
+    "why": "a liquid column cannot stand below its vapour pressure: where the full-pipe flow "
+           "would take a high point below it, a vapour (and air) pocket forms there, the leg "
+           "downstream runs part full, and the high point acts as a control — the flow is "
+           "set by the energy balance from the tank surface to that point at vapour "
+           "pressure. Where the level falls so far that the static column to the high point "
+           "alone exceeds (p_surface − p_v)/(ρg), the column parts and the siphon loses prime; "
+           "it does not restart by itself. Dissolved gas comes out above vapour pressure, so "
+           "a real siphon can break sooner: the margin (default 0 m, the physical limit) is "
+           "the user's",
+    "source": "energy equation (Bernoulli with losses) and the definition of vapour "
+              "pressure; column-separation model: common practice, no source",
+}
+
+#: How far short of an asymptotic stop level the time is reported (data): the larger of
+#: ``offset_m`` and ``offset_fraction`` × (start − stop). An approach is asymptotic when the
+#: flow vanishes at least linearly in the head left (laminar: Q ∝ Δh; turbulent Q ∝ √Δh
+#: gives a finite time): the local exponent d ln Q / d ln Δh at the offset is ≥ ``exponent``.
+ASYMPTOTE_RULE = {"offset_m": 0.001, "offset_fraction": 0.001, "exponent": 0.75,
+                  "source": "∫dh/Q diverges where Q ∝ Δh^n with n ≥ 1 (calculus); the "
+                            "offset and the exponent threshold: this kit"}
 
 
 @dataclass(frozen=True)
@@ -96,8 +137,13 @@ ORIFICE_CD: dict[str, DischargeCoefficient] = {
         "classic value 0.60–0.62 (Weisbach; e.g. Idelchik, Handbook of Hydraulic Resistance, "
         "3rd ed., 1994, ch. 4), from memory"),
     "rounded": DischargeCoefficient(
-        "rounded", "well-rounded (bell-mouth) orifice", 0.97,
-        "0.95–0.98 for r/d ≥ 0.15 (common handbook range, e.g. Crane TP-410), from memory"),
+        "rounded", "rounded (bell-mouth) outlet, r/d = 0.15", 0.97,
+        "Cd = 1/sqrt(1 + K) for a rounded outlet running full (no vena contracta), K = 0.067 "
+        "of a rounded entrance at r/d = 0.15 by Idel'chik (Handbook of Hydraulic Resistance), "
+        "as in fluids.fittings.entrance_rounded. At the same r/d Rennels & Hudson (2012, the "
+        "kit's entrance_rounded fitting default) give K 0.149 (Cd 0.93) and Crane TP-410 "
+        "K 0.04 (Cd 0.98): for a rounding other than r/d 0.15, use a line with an "
+        "entrance_rounded row instead"),
     "short_tube": DischargeCoefficient(
         "short_tube", "square-edged short tube, length 2–3 d, running full", 0.82,
         "classic value ≈ 0.82 (e.g. Idelchik 1994), from memory"),
@@ -216,6 +262,16 @@ class PipedOutlet:
         if self.receiver_pressure is not None:
             check_range("receiver pressure", self.receiver_pressure, "Pa", low=0.0, high=1e8)
         check_range("outlet line exit area", self.exit_area, "m²", low=0.0, high=100.0)
+        if self.free:
+            from kit.core.system import exit_rows
+
+            rows = exit_rows(self.line)
+            if rows:
+                raise InputError(
+                    f"fittings of outlet line '{getattr(self.line, 'name', 'outlet')}'",
+                    rows[0], "must not hold an exit fitting (K = 1) on a free discharge: the "
+                    "jet already carries away the exit velocity head, so V²/2g would count "
+                    "twice; remove the exit row, or give a receiver level (submerged exit)")
 
     @property
     def name(self) -> str:
@@ -459,6 +515,24 @@ class DrainResult:
     findings : list of Finding
     cautions : list of str
     method : dict
+    siphon_limited : bool
+        True where the flow was held below full-pipe flow by vapour pressure at a high
+        point (:data:`SIPHON_MODEL`) somewhere in the drain.
+    siphon_broken : bool
+        True where the drain stops because the siphon breaks (the stop level is then the
+        break level).
+    siphon_limit_level : float
+        Highest level at which the siphon limit applies [m] (NaN if never).
+    asymptotic : bool
+        True where the approach to the stop level is asymptotic; the history then ends
+        ``end_offset`` short of it (:data:`ASYMPTOTE_RULE`).
+    end_offset : float
+        How far short of the stop level the history ends [m] (0 unless asymptotic).
+    time_note : str
+        Words to print next to the time: the siphon limit, the break, the asymptote
+        ('' when none applies).
+    T_air : float
+        Air temperature used for the vent check [K].
     """
 
     time: np.ndarray
@@ -480,6 +554,13 @@ class DrainResult:
     findings: list = field(default_factory=list)
     cautions: list = field(default_factory=list)
     method: dict = field(default_factory=lambda: dict(DRAIN_METHOD))
+    siphon_limited: bool = False
+    siphon_broken: bool = False
+    siphon_limit_level: float = float("nan")
+    asymptotic: bool = False
+    end_offset: float = 0.0
+    time_note: str = ""
+    T_air: float = T_AIR_DEFAULT
 
     def time_to(self, levels) -> dict:
         """Time [s] from the start to each of ``levels`` [m] (``inf`` below a stop level).
@@ -526,19 +607,25 @@ def _stop(outlet, rho, p_surface, p_atm):
                                        "does not drain through it")
     if not isinstance(outlet, OrificeOutlet) and not outlet.free:
         why = (f"the tank level equalises with {down} (head balance at {h_eq:.4g} m, "
-               f"surface pressures {p_surface:.6g} and {p_down:.6g} Pa)")
+               f"surface pressures {p_surface:.6g} and {p_down:.6g} Pa(abs))")
     elif p_surface < p_down:
-        why = (f"the surface vacuum ({p_surface:.6g} Pa against {p_down:.6g} Pa at the "
+        why = (f"the surface vacuum ({p_surface:.6g} Pa(abs) against {p_down:.6g} Pa(abs) at the "
                f"discharge) holds the liquid up: available head falls to 0 at {h_eq:.4g} m")
     else:
         why = f"available head falls to 0 at {h_eq:.4g} m ({down})"
     return h_eq, z_down, p_down, why
 
 
-def _grid(tank, h_end: float, start: float):
+def _grid(tank, h_end: float, start: float, cluster: float | None = None):
     hs, Vs = tank.table
     inside = (hs > h_end) & (hs < start)
     extra = np.concatenate([[h_end, start], np.linspace(h_end, start, 129)[1:-1]])
+    if cluster is not None and h_end - cluster < 0.25 * (start - h_end):
+        # levels clustered geometrically towards a stop level, where Q -> 0
+        d0 = max(h_end - cluster, 1e-12)
+        d1 = 0.25 * (start - h_end) + d0
+        geo = cluster + np.geomspace(d0, d1, 129)[1:]
+        extra = np.concatenate([extra, geo[(geo > h_end) & (geo < start)]])
     h = np.concatenate([hs[inside], extra])
     V = np.concatenate([Vs[inside], tank.volume(extra)])
     order = np.argsort(-h, kind="stable")
@@ -556,7 +643,8 @@ def _times(V: np.ndarray, Q: np.ndarray) -> np.ndarray:
 
 
 def drain(tank, outlet, state, start: float, target: float, p_surface: float = P_ATM,
-          p_atm: float = P_ATM, vent: Vent | None = None) -> DrainResult:
+          p_atm: float = P_ATM, vent: Vent | None = None, *, T_air: float | None = None,
+          crest_margin: float = 0.0) -> DrainResult:
     """Drain a tank from ``start`` to ``target`` level through an orifice or a line.
 
     Quasi-steady energy balance with the outflow of an orifice (Torricelli 1644, with a
@@ -581,6 +669,13 @@ def drain(tank, outlet, state, start: float, target: float, p_surface: float = P
         pressure of a line.
     vent : Vent, optional
         The vent, for the air-inflow check at the peak drain rate.
+    T_air : float, optional
+        Temperature of the air drawn in through the vent [K]; default
+        :data:`T_AIR_DEFAULT` (20 °C). The vent check uses the air's density at this
+        temperature, not the liquid's.
+    crest_margin : float
+        Margin above vapour pressure at which a line's high point is held when the siphon
+        limit applies [m of liquid], ≥ 0; default 0 (the physical limit).
 
     Returns
     -------
@@ -589,10 +684,20 @@ def drain(tank, outlet, state, start: float, target: float, p_surface: float = P
     Notes
     -----
     The surface pressure is held constant (a vent that keeps up, a pad regulator that keeps
-    up); the vent finding says whether it can. A receiver's level is held constant. Where
-    flow stops above the target the history ends at the stop level, with a FAIL finding;
-    the time there is finite for an orifice or turbulent line (Q ∝ √ΔH); for a line that is
-    laminar at the end the true approach is asymptotic and the last step is a lower bound.
+    up); the vent finding says whether it can. A receiver's level is held constant.
+
+    **Siphons** (:data:`SIPHON_MODEL`): at each level the outflow of a line is the smaller of
+    the full-pipe flow and the flow that keeps every station at or above
+    p_v + crest_margin·ρg; below the level where even zero flow cannot (the static column to
+    the highest station), the siphon breaks and the history stops there (FAIL). The result
+    carries ``siphon_limited`` / ``siphon_broken`` and a finding, and ``time_note`` says so
+    beside the time.
+
+    **Stop levels**: where flow stops above the target the history ends at the stop level,
+    with a FAIL finding. The time there is finite for an orifice or turbulent line
+    (Q ∝ √ΔH); where the approach is asymptotic (laminar, Q ∝ ΔH: no finite time) the
+    history ends short of the stop level by :data:`ASYMPTOTE_RULE` (``end_offset``), the
+    flag ``asymptotic`` is set and the finding and ``time_note`` say so.
 
     Examples
     --------
@@ -613,23 +718,81 @@ def drain(tank, outlet, state, start: float, target: float, p_surface: float = P
     p_surface = check_range("surface pressure", p_surface, "Pa", low=0.0, high=1e8)
     p_atm = check_range("atmospheric pressure", p_atm, "Pa", low=3e4, high=1.2e5)
     rho, mu = float(state.rho), float(state.mu)
+    crest_margin = check_range("siphon crest margin", crest_margin, "m", low=0.0, high=100.0,
+                               low_inclusive=True)
+    T_air = T_AIR_DEFAULT if T_air is None else check_range(
+        "air temperature at the vent", T_air, "K", low=200.0, high=400.0, low_inclusive=True)
+    hs_t, Vs_t = tank.table
+    with np.errstate(divide="ignore", invalid="ignore"):
+        slopes = np.diff(Vs_t) / np.diff(hs_t)
+    A_tank_max = float(np.nanmax(slopes))
+    d_tank = math.sqrt(4.0 * A_tank_max / math.pi)
     if isinstance(outlet, OrificeOutlet):
         check_range("orifice elevation offset", outlet.elevation_offset, "m", low=tank.h_min,
-                    high=tank.h_max, low_inclusive=True)
+                    high=start, low_inclusive=True)
+        check_range(f"orifice diameter (tank '{tank.name}' largest section ≈ {d_tank:.4g} m "
+                    "equivalent)", outlet.diameter, "m", low=0.0, high=d_tank,
+                    high_inclusive=False)
         d_bore = outlet.diameter
         A_bore = outlet.area
     else:
         check_range("outlet line inlet elevation (discharge elevation − line rise)",
-                    outlet.inlet_elevation, "m", low=tank.h_min, high=tank.h_max,
+                    outlet.inlet_elevation, "m", low=tank.h_min, high=start,
                     low_inclusive=True)
+        check_range(f"outlet line inlet bore (tank '{tank.name}' largest section ≈ "
+                    f"{d_tank:.4g} m equivalent)", outlet.inlet_diameter, "m", low=0.0,
+                    high=d_tank, high_inclusive=False)
         d_bore = outlet.exit_diameter
         A_bore = outlet.exit_area
 
     stop, z_down, p_down, why = _stop(outlet, rho, p_surface, p_atm)
     stop = max(stop, tank.h_min)
+    # the siphon limit (piped outlets with a profile and a vapour pressure)
+    pv = getattr(state, "pv", None)
+    geo = _line_geometry(outlet) if isinstance(outlet, PipedOutlet) else None
+    p_lim = None
+    broken = False
+    if geo is not None and pv is not None:
+        p_lim = float(pv) + crest_margin * rho * G
+        z_hi, name_hi = geo["z_top"], geo["name_top"]
+        h_break = z_hi + (p_lim - p_surface) / (rho * G)
+        if h_break > stop:
+            stop = h_break
+            broken = True
+            why = (f"the siphon breaks: below {h_break:.4g} m the static column up to station "
+                   f"'{name_hi}' (elevation {z_hi:.4g} m) cannot stand above vapour pressure"
+                   + (f" + {crest_margin:g} m" if crest_margin else "") + f" "
+                   f"({_kpa(p_lim)}(abs)) with the surface at {_kpa(p_surface)}(abs): the "
+                   "column parts and the siphon loses prime")
     reached = target >= stop - 1e-12
-    h_end = target if reached else stop
+    if reached:
+        broken = False
     subject = f"drain of '{tank.name}' through {outlet.name}"
+
+    def flow_at(levels):
+        dHx = (levels - z_down) + (p_surface - p_down) / (rho * G)
+        if isinstance(outlet, OrificeOutlet):
+            return orifice_flow(outlet, dHx), np.zeros(levels.shape, dtype=bool)
+        Qx = piped_flow(outlet, dHx, state)
+        if p_lim is None:
+            return Qx, np.zeros(levels.shape, dtype=bool)
+        return _siphon_limit(outlet, geo, state, levels, Qx, p_surface, p_lim)
+
+    # asymptotic approach to the stop level (laminar): end short of it
+    span = start - stop
+    offset = max(ASYMPTOTE_RULE["offset_m"], ASYMPTOTE_RULE["offset_fraction"] * span)
+    asymptotic = False
+    if span > 2.0 * offset and (not reached or target - stop < offset):
+        q2, _ = flow_at(np.array([stop + offset, stop + 0.1 * offset]))
+        if q2[0] > 0.0 and q2[1] > 0.0:
+            n_exp = math.log10(q2[0] / q2[1])
+            asymptotic = n_exp >= ASYMPTOTE_RULE["exponent"]
+    if reached and not (asymptotic and target < stop + offset):
+        h_end = target
+    elif asymptotic:
+        h_end = stop + offset
+    else:
+        h_end = stop
 
     if start <= stop:
         # no outflow at all
@@ -640,17 +803,26 @@ def drain(tank, outlet, state, start: float, target: float, p_surface: float = P
         f = [Finding(Severity.FAIL, subject, "level reached", start, "m", f"<= {target:g} m",
                      f"does not reach target: no outflow at the start level {start:g} m "
                      f"because {why}", "energy balance (Bernoulli)")]
+        if broken:
+            f.append(Finding(Severity.FAIL, subject, "siphon limit at vapour pressure", stop,
+                             "m", "no vapour limit over the drain",
+                             f"the siphon cannot run at all: {why}. " + CAUTIONS["vacuum"],
+                             SIPHON_MODEL["name"] + "; " + SIPHON_MODEL["source"]))
         return DrainResult(zero, h, V, zero, zero, zero, dH0, start, target, False, stop, why,
-                           0.0, 0.0, findings=f, cautions=_cautions(state, p_surface, p_atm))
+                           0.0, 0.0, findings=f,
+                           cautions=_cautions(state, p_surface, p_atm,
+                                              isinstance(outlet, PipedOutlet)),
+                           siphon_broken=bool(broken),
+                           time_note="no outflow: siphon cannot run" if broken else
+                           "no outflow", T_air=float(T_air))
 
-    h, V = _grid(tank, h_end, start)
+    h, V = _grid(tank, h_end, start, stop if (asymptotic or broken or not reached) else None)
     dH = (h - z_down) + (p_surface - p_down) / (rho * G)
-    if isinstance(outlet, OrificeOutlet):
-        Q = orifice_flow(outlet, dH)
-    else:
-        Q = piped_flow(outlet, dH, state)
-    if not reached:
+    Q, limited = flow_at(h)
+    if not reached and not asymptotic:
         Q[-1] = 0.0
+    if asymptotic and h_end > target:
+        reached = False
     t = _times(V, Q)
     idx = np.arange(len(h))
     coarse = np.unique(np.concatenate([idx[::2], [len(h) - 1]]))
@@ -659,28 +831,88 @@ def drain(tank, outlet, state, start: float, target: float, p_surface: float = P
     vel = Q / A_bore
     Re = rho * vel * d_bore / mu
 
+    lim_any = bool(limited.any())
+    lim_top = float("nan")
+    if lim_any:
+        # the level where the limit begins, between grid levels, by bisection
+        i = int(np.argmax(limited))
+        lim_top = float(h[i])
+        if i > 0 and not limited[i - 1]:
+            a_, b_ = float(h[i]), float(h[i - 1])      # limited at a_, free at b_
+            for _ in range(60):
+                m_ = 0.5 * (a_ + b_)
+                if flow_at(np.array([m_]))[1][0]:
+                    a_ = m_
+                else:
+                    b_ = m_
+            lim_top = 0.5 * (a_ + b_)
+    notes = []
+    if lim_any:
+        notes.append(f"flow limited by the siphon high point at vapour pressure below "
+                     f"{lim_top:.4g} m")
+    if broken:
+        notes.append(f"siphon breaks at {stop:.4g} m")
+    if asymptotic:
+        notes.append(f"time to {h_end:.4g} m, {offset * 1000:.3g} mm short of the stop level "
+                     f"{stop:.4g} m: the approach is asymptotic (flow ∝ head left), no finite "
+                     "time to the stop level")
+    time_note = "; ".join(notes)
+
     findings = []
+    src_siphon = SIPHON_MODEL["source"]
     if reached:
-        findings.append(Finding(Severity.PASS, subject, "level reached", target, "m",
-                                f"<= {target:g} m",
-                                f"reaches the target in {t[-1]:.0f} s ({t[-1] / 60:.1f} min)",
-                                "energy balance"))
+        sev = Severity.CHECK if lim_any else Severity.PASS
+        rule = f"reaches the target in {t[-1]:.0f} s ({t[-1] / 60:.1f} min)"
+        if lim_any:
+            rule += (" only with the flow limited by the siphon high point at vapour pressure "
+                     f"(below {lim_top:.4g} m); a vapour-limited siphon can lose prime")
+        findings.append(Finding(sev, subject, "level reached", target, "m",
+                                f"<= {target:g} m", rule,
+                                "energy balance" + ("; " + src_siphon if lim_any else "")))
     else:
-        findings.append(Finding(Severity.FAIL, subject, "level reached", stop, "m",
-                                f"<= {target:g} m",
-                                f"does not reach target: stops at {stop:.4g} m because {why}",
-                                "energy balance (Bernoulli)"))
+        rule = f"does not reach target: stops at {stop:.4g} m because {why}"
+        if asymptotic:
+            rule += (f"; the approach is asymptotic, so the time given ({t[-1]:.0f} s) is to "
+                     f"{h_end:.4g} m, {offset * 1000:.3g} mm short of it")
+        findings.append(Finding(Severity.FAIL, subject, "level reached",
+                                h_end if asymptotic else stop, "m", f"<= {target:g} m", rule,
+                                "energy balance (Bernoulli)"
+                                + (f"; {ASYMPTOTE_RULE['source']}" if asymptotic else "")))
+    if lim_any or broken:
+        if lim_any:
+            words = (f"the full-pipe flow would take the line below vapour pressure below level "
+                     f"{lim_top:.4g} m; there the flow is held at the value that keeps the "
+                     f"lowest station at {_kpa(p_lim)}(abs) (vapour pressure"
+                     + (f" + {crest_margin:g} m" if crest_margin else "") + "): a vapour/air "
+                     "pocket forms at the high point and the leg beyond runs part full; the "
+                     "drain time includes this limited flow")
+            if broken:
+                words += f"; the siphon breaks at {stop:.4g} m"
+        else:
+            words = (f"the siphon breaks at {stop:.4g} m: the static column to the high point "
+                     "cannot stand above vapour pressure")
+        findings.append(Finding(
+            Severity.FAIL, subject, "siphon limit at vapour pressure",
+            lim_top if lim_any else stop, "m", "no vapour limit over the drain",
+            words + ". Air valves / vacuum breakers and the vacuum rating of the line must be "
+            "engineered. " + CAUTIONS["vacuum"], SIPHON_MODEL["name"] + "; " + src_siphon))
     findings += _vortex_findings(subject, outlet, h, Q)
     findings += _regime_findings(subject, outlet, state, h, Q, Re)
-    findings += _surface_findings(subject, state, p_surface, p_atm, float(Q.max()), vent)
+    findings += _fitting_findings(subject, outlet, state, Q)
+    findings += _surface_findings(subject, state, p_surface, p_atm, float(Q.max()), vent,
+                                  T_air)
     low_p, low_st = float("nan"), ""
     if isinstance(outlet, PipedOutlet):
         low_p, low_st, fs = _line_pressure_findings(subject, outlet, state, h, Q, p_surface,
-                                                    p_atm)
+                                                    p_atm, vapour_held=lim_any)
         findings += fs
     return DrainResult(t, h, V, Q, vel, Re, dH, start, target, bool(reached), float(stop),
                        why, float(t[-1]), float(t_err), low_p, low_st, findings,
-                       _cautions(state, p_surface, p_atm, isinstance(outlet, PipedOutlet)))
+                       _cautions(state, p_surface, p_atm, isinstance(outlet, PipedOutlet)),
+                       siphon_limited=lim_any, siphon_broken=bool(broken),
+                       siphon_limit_level=lim_top, asymptotic=bool(asymptotic),
+                       end_offset=float(offset) if asymptotic else 0.0,
+                       time_note=time_note, T_air=float(T_air))
 
 
 def _cautions(state, p_surface, p_atm, piped=False) -> list[str]:
@@ -756,7 +988,30 @@ def _regime_findings(subject, outlet, state, h, Q, Re_exit) -> list[Finding]:
                     "Moody (1944); blend policy: kit.core.friction")]
 
 
-def _surface_findings(subject, state, p_surface, p_atm, Q_max, vent) -> list[Finding]:
+def _fitting_findings(subject, outlet, state, Q) -> list[Finding]:
+    """Fitting rows used below their K method's Re range, and friction extrapolation, over
+    the drain's flows (:func:`kit.core.fittings.fitting_re_findings`)."""
+    if not isinstance(outlet, PipedOutlet):
+        return []
+    segs = getattr(outlet.line, "segments", None) or ()
+    live = Q[Q > 0]
+    if not segs or live.size == 0:
+        return []
+    from kit.core.fittings import fitting_re_findings
+    from kit.core.friction import friction_range_findings
+
+    out = []
+    for s in segs:
+        Re = state.rho * live / s.pipe.area * s.pipe.Di / state.mu
+        sub = f"{subject}, segment '{s.name}'"
+        out += friction_range_findings(sub, Re, s.pipe.roughness / s.pipe.Di)
+        for f in s.fittings:
+            out += fitting_re_findings(f, Re, subject=sub)
+    return out
+
+
+def _surface_findings(subject, state, p_surface, p_atm, Q_max, vent,
+                      T_air: float = T_AIR_DEFAULT) -> list[Finding]:
     out = []
     tol = 1e-6 * p_atm
     if p_surface < p_atm - tol:
@@ -776,8 +1031,7 @@ def _surface_findings(subject, state, p_surface, p_atm, Q_max, vent) -> list[Fin
                                "give the vent size", "vent capacity not checked. "
                                + CAUTIONS["drain"], "common practice, no source"))
         return out
-    T = float(getattr(state, "T", 293.15))
-    rho_air = p_atm * _M_AIR / (_R * T)
+    rho_air = p_atm * _M_AIR / (_R * T_air)   # air at the air's temperature (ideal gas)
     dP = vent_pressure_drop(vent, Q_max, rho_air)
     lim = vent.allowable_vacuum
     if dP > lim:
@@ -787,25 +1041,34 @@ def _surface_findings(subject, state, p_surface, p_atm, Q_max, vent) -> list[Fin
     else:
         sev, rule = Severity.PASS, "vent admits the peak drain rate"
     out.append(Finding(sev, "vent", "vent pressure drop at peak drain rate", dP, "Pa",
-                       f"<= {lim:g} Pa vacuum", rule + ". " + CAUTIONS["drain"] + " "
-                       + CAUTIONS["vacuum"],
-                       "orifice equation ΔP = ρ_air/2·(Q/(Cd·A))², air inflow = liquid outflow; "
+                       f"<= {lim:g} Pa vacuum (gauge, below atmospheric)",
+                       rule + ". " + CAUTIONS["drain"] + " " + CAUTIONS["vacuum"],
+                       f"orifice equation ΔP = ρ_air/2·(Q/(Cd·A))², air inflow = liquid outflow, "
+                       f"ρ_air of dry air at {T_air - 273.15:.3g} °C (ideal gas); "
                        "allowable vacuum user-set (default 0.25 kPa, API 650, from memory)"))
     return out
 
 
-def _line_pressure_findings(subject, outlet, state, h, Q, p_surface, p_atm):
+def _line_pressure_findings(subject, outlet, state, h, Q, p_surface, p_atm,
+                            vapour_held: bool = False):
     line = outlet.line
     if not (hasattr(line, "profile") and getattr(line, "segments", None)):
         return float("nan"), "", [Finding(
             Severity.CHECK, subject, "lowest pressure in the line", float("nan"), "Pa",
-            "> vapour pressure", "line has no pressure profile: siphon / vapour check not "
-            "made", "common practice, no source")]
-    n = len(h)
-    picks = np.unique(np.round(np.linspace(0, n - 1, min(n, 13))).astype(int))
+            "> vapour pressure (absolute)", "line has no pressure profile: siphon / vapour "
+            "check not made", "common practice, no source")]
     rho = state.rho
     A1 = float(line.segments[0].pipe.area)
     z_in = outlet.inlet_elevation
+    geo = _line_geometry(outlet) if hasattr(line, "segment_losses") else None
+    if geo is not None:
+        # every level at once (the energy balance of Line.profile, vectorised), then the
+        # profile of the level with the lowest station pressure
+        P = _pressures(outlet, geo, state, h, Q, p_surface)
+        picks = [int(np.argmin(P.min(axis=0)))]
+    else:
+        n = len(h)
+        picks = np.unique(np.round(np.linspace(0, n - 1, min(n, 13))).astype(int))
     best = None
     for i in picks:
         q = float(Q[i])
@@ -821,10 +1084,110 @@ def _line_pressure_findings(subject, outlet, state, h, Q, p_surface, p_atm):
     pv = getattr(state, "pv", None)
     if pv is None:
         fs = [Finding(Severity.CHECK, f"station '{low.name}' of {outlet.name}",
-                      "lowest pressure in the line", low.p, "Pa", "> vapour pressure",
-                      "vapour-pressure check not made: the liquid has no vapour-pressure model; "
-                      "give one", "definition of vapour pressure")]
+                      "lowest pressure in the line", low.p, "Pa",
+                      "> vapour pressure (absolute)",
+                      f"vapour-pressure check not made: the liquid has no vapour-pressure model; "
+                      f"give one (lowest pressure {_kpa(low.p)}(abs) = {_kpa(low.p_gauge)}(g); "
+                      "the siphon limit is not applied without it)",
+                      "definition of vapour pressure")]
+        if low.p < 0.0:
+            fs.append(Finding(Severity.FAIL, f"station '{low.name}' of {outlet.name}",
+                              "absolute pressure", low.p, "Pa", ">= 0 Pa(abs)",
+                              f"the computed absolute pressure {_kpa(low.p)}(abs) is below zero, "
+                              "an impossible state: the liquid column parts and the flow cannot "
+                              "be as computed; give a vapour pressure so the siphon limit is "
+                              "applied. " + CAUTIONS["vacuum"], "definition of absolute pressure"))
     else:
         fs = vapour_findings(best, pv, subject=f"station '{low.name}' of {outlet.name} "
                                                f"during the drain")
+        if vapour_held:
+            fs = [f if f.quantity != "pressure above vapour pressure" or
+                  f.severity is Severity.FAIL else
+                  Finding(Severity.FAIL, f.subject, f.quantity, f.value, f.unit, f.limit,
+                          "held at vapour pressure by the siphon limit: a vapour/air pocket "
+                          "at the high point (" + f.rule.split("(", 1)[-1], f.source)
+                  for f in fs]
     return float(low.p), low.name, fs
+
+
+def _kpa(p: float) -> str:
+    return f"{p / 1000:.4g} kPa"
+
+
+def _line_geometry(outlet):
+    """Station elevations on the tank datum, areas and names of an outlet line with
+    segments; the free jet's end station is left out (it is at the receiver pressure)."""
+    line = outlet.line
+    segs = getattr(line, "segments", None)
+    if not segs or not hasattr(line, "segment_losses"):
+        return None
+    z = outlet.inlet_elevation + np.concatenate([[0.0], np.cumsum([s.rise for s in segs])])
+    area = np.array([segs[0].pipe.area] + [s.pipe.area for s in segs])
+    names = [getattr(line, "start_station", "start")] + [s.station for s in segs]
+    n = len(names) - (1 if outlet.free else 0)
+    k = int(np.argmax(z[:n]))
+    return {"z": z[:n], "area": area[:n], "names": names[:n], "n": n,
+            "z_top": float(z[k]), "name_top": names[k]}
+
+
+def station_pressures(outlet, state, levels, Q, p_surface):
+    """Absolute pressure [Pa] at each station of an outlet line, shape (n_stations, n).
+
+    Energy equation from the tank surface (level ``h``, pressure ``p_surface``, velocity
+    zero) to station i: p_i = p_s + ρg(h − z_i) − ρV_i²/2 − ρg·Σ h_L(segments up to i),
+    with the fitting losses lumped at the end of their segment, as in
+    :meth:`kit.core.line.Line.profile`. A free jet's end station is left out (it is at the
+    receiver pressure by construction).
+
+    Parameters
+    ----------
+    outlet : PipedOutlet
+        With a :class:`~kit.core.line.Line` (segments).
+    state : LiquidState
+    levels, Q : array_like
+        Tank levels [m] and the flows there [m³/s], same shape.
+    p_surface : float
+        Absolute pressure on the liquid surface [Pa].
+    """
+    geo = _line_geometry(outlet)
+    if geo is None:
+        raise InputError("outlet line", type(outlet.line).__name__,
+                         "must be a Line with segments for station pressures")
+    levels = np.atleast_1d(np.asarray(levels, dtype=float))
+    Q = np.atleast_1d(np.asarray(Q, dtype=float))
+    return _pressures(outlet, geo, state, levels, Q, p_surface)
+
+
+def _pressures(outlet, geo, state, levels, Q, p_surface):
+    rho = state.rho
+    seg = outlet.line.segment_losses(Q, state)                   # (n_seg, n)
+    cum = np.vstack([np.zeros((1, Q.size)), np.cumsum(seg, axis=0)])[: geo["n"]]
+    V = Q[None, :] / geo["area"][:, None]
+    return (p_surface + rho * G * (levels[None, :] - geo["z"][:, None])
+            - 0.5 * rho * V * V - rho * G * cum)
+
+
+def _siphon_limit(outlet, geo, state, levels, Q_full, p_surface, p_lim):
+    """Flows held so that no station falls below ``p_lim``: bisection on Q in [0, Q_full]
+    at every level where the full-pipe flow would go below (station pressures fall
+    monotonically with flow). Returns ``(Q, limited)``."""
+    p_full = _pressures(outlet, geo, state, levels, Q_full, p_surface).min(axis=0)
+    limited = (p_full < p_lim) & (Q_full > 0)
+    Q = Q_full.copy()
+    if not limited.any():
+        return Q, limited
+    k = np.nonzero(limited)[0]
+    lv = levels[k]
+    lo = np.zeros(k.size)
+    hi = Q_full[k].copy()
+    p0 = _pressures(outlet, geo, state, lv, lo, p_surface).min(axis=0)
+    dead = p0 < p_lim            # even zero flow cannot hold the column: broken
+    for _ in range(200):
+        mid = 0.5 * (lo + hi)
+        ok = _pressures(outlet, geo, state, lv, mid, p_surface).min(axis=0) >= p_lim
+        lo = np.where(ok, mid, lo)
+        hi = np.where(ok, hi, mid)
+        if np.all(hi - lo <= 1e-13 * np.maximum(hi, 1e-300)):
+            break
+    Q[k] = np.where(dead, 0.0, lo)
+    return Q, limited

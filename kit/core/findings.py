@@ -101,9 +101,12 @@ CAUTIONS: dict[str, str] = {
         "Pressures shown are steady-state. Confirm that pipe, fittings, flanges and vessels are "
         "rated for the maximum pressure including shut-off head, relief settings and surge."),
     "water_hammer": (
-        "Water hammer (surge on valve closure or pump trip) is not analysed. Fast-closing valves "
-        "and pump trips can raise pressure far above steady values; do a transient analysis "
-        "where the line is long, the velocity high or the consequence serious."),
+        "Water hammer (surge on valve closure or pump trip) is screened by closed-form bounds "
+        "(Korteweg wave speed, Joukowsky and Michaud rises, instantaneous pump stop), not "
+        "analysed. Fast-closing valves and pump trips can raise pressure far above steady "
+        "values, and real surges can exceed the screen; a qualified engineer must do a "
+        "transient analysis where the screen shows risk, the line is long, the velocity high "
+        "or the consequence serious."),
     "cavitation": (
         "Cavitation damages pumps and valves and can stop flow. NPSH margins here use the stated "
         "guideline; the pump maker's NPSHr and its test basis govern."),

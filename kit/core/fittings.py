@@ -26,10 +26,14 @@ Traps of fluids that this module guards (and tests):
 - ``bend_rounded`` without roughness assumes a smooth pipe, without rc assumes R/D = 5: both
   are always passed.
 
-Friction factors inside geometric methods (bends, conical reducers) are Colebrook (Clamond's
-exact solution) evaluated at ``max(Re, RE_FD_FLOOR)``, as fluids does for Re above the floor;
-the floor keeps K finite as flow → 0 (Colebrook has no meaning there anyway). Most K methods
-are for turbulent flow; laminar K rises (the Hooper and Darby K1/Re terms model that).
+Friction factors inside geometric methods (bends, conical reducers) follow **one rule with the
+pipe**: :func:`kit.core.friction.darcy_friction` (64/Re laminar, the stated blend, Colebrook
+turbulent) evaluated at ``max(Re, RE_FD_FLOOR)``, in :func:`fitting_K` and in
+:class:`kit.core.line.Line` alike; the floor keeps K finite as flow → 0. Most K methods are
+written for turbulent flow; laminar K rises (the Hooper and Darby K1/Re terms model that).
+:data:`FITTING_RE_RANGES` states, per method, the lowest Re its source covers;
+:func:`fitting_re_findings` reports a row used below it. Valves that have a Darby 3-K row
+take ``method="Darby 3-K"`` (Re-dependent, for laminar and transitional flow).
 
 Example
 -------
@@ -53,7 +57,7 @@ import numpy as np
 from fluids.numerics import interp
 from fluids.piping import NPS40, S40i
 
-from kit.core.friction import colebrook_clamond
+from kit.core.friction import darcy_friction
 from kit.errors import (
     InputError,
     NoSolutionError,
@@ -65,8 +69,9 @@ from kit.errors import (
 
 __all__ = [
     "ParamSpec", "FittingKind", "FrozenParams", "Fitting", "FITTING_KINDS", "HOOPER_NAMES",
-    "DARBY_NAMES", "RE_FD_FLOOR", "D_RANGE", "fitting_K", "fittings_K_total", "total_K_unchecked", "describe",
-    "SOURCES",
+    "DARBY_NAMES", "RE_FD_FLOOR", "D_RANGE", "fitting_K", "fittings_K_total", "total_K_unchecked",
+    "describe", "SOURCES", "FITTING_RE_RANGES", "VALVE_DARBY_ROWS", "fitting_re_range",
+    "fitting_re_findings",
 ]
 
 #: Re below which friction factors inside fitting methods are held at their value here [-].
@@ -208,8 +213,9 @@ class FrozenParams(Mapping):
 # ---------------------------------------------------------------- helpers
 
 def _fd(Re, D, roughness):
-    """Colebrook friction factor (Clamond) at max(Re, RE_FD_FLOOR), as an array."""
-    return colebrook_clamond(np.maximum(Re, RE_FD_FLOOR), roughness / D)
+    """Darcy friction factor at max(Re, RE_FD_FLOOR), as an array: the same rule as the pipe
+    (:func:`kit.core.friction.darcy_friction`: 64/Re laminar, blend, Colebrook)."""
+    return darcy_friction(np.maximum(Re, RE_FD_FLOOR), roughness / D)
 
 
 @lru_cache(maxsize=8192)
@@ -357,6 +363,8 @@ def _valve(fname: str, *, seat=False, angle=False, style=None, style_arg="style"
     """Build a compute function for a Crane TP-410 valve (fT from ft_Crane(D))."""
 
     def compute(p, Re, D, eps):
+        if p.get("method") == "Darby 3-K":
+            return _k_darby({"name": _darby_valve_name(p)}, Re, D, eps)
         kw = {}
         if seat:
             kw.update(D1=p["beta"] * D, D2=D)
@@ -373,6 +381,97 @@ def _valve(fname: str, *, seat=False, angle=False, style=None, style_arg="style"
     return compute
 
 
+#: Valve kinds (and style) that have a row in Darby's 3-K table (fluids.fittings.Darby),
+#: full bore (β = 1) only: kind -> {style or None: Darby row name}.
+VALVE_DARBY_ROWS: dict[str, dict] = {
+    "valve_gate": {None: "Valve, Gate valve, standard, β = 1"},
+    "valve_globe": {None: "Valve, Globe valve, standard, β = 1"},
+    "valve_ball": {None: "Valve, Ball valve, standard, β = 1"},
+    "valve_plug": {"straight-through": "Valve, Plug valve, straight through",
+                   "3-way, flow straight through": "Valve, Plug valve, three-way (flow through)",
+                   "3-way, flow 90 deg": "Valve, Plug valve, branch flow"},
+    "valve_diaphragm": {"weir": "Valve, Diaphragm, dam type"},
+    "valve_check_swing": {None: "Valve, Swing check"},
+    "valve_check_lift": {None: "Valve, Lift check"},
+}
+
+
+def _darby_valve_name(p) -> str:
+    rows = p["_darby_rows"]
+    return rows.get(p.get("style"), rows.get(None))
+
+
+#: Lowest Reynolds number (in the row's pipe) each K method's source covers, as data:
+#: method -> (Re_low, words, source). Below it a finding says K is used outside its range.
+FITTING_RE_RANGES: dict[str, tuple] = {
+    "fixed K": (1.0e4, "a given K is taken as a fully turbulent value",
+                "common practice, no source"),
+    "Crane valve": (1.0e4, "K = N·fT uses the fully turbulent friction factor fT",
+                    "Crane TP-410 (2009): K constant in fully turbulent flow (from memory); "
+                    "Re bound: common practice, no source"),
+    "geometry": (1.0e4, "geometric K correlations are fitted to turbulent data",
+                 "Rennels & Hudson (2012), Crane TP-410, Idel'chik: turbulent data (from "
+                 "memory); Re bound: common practice, no source"),
+    "Cv": (1.0e4, "K from Cv assumes turbulent flow through the valve",
+           "ISA-75.01.01 / IEC 60534-2-1 apply a Reynolds-number factor below a valve Re of "
+           "about 1e4 (from memory)"),
+    "Kv": (1.0e4, "K from Kv assumes turbulent flow through the valve",
+           "ISA-75.01.01 / IEC 60534-2-1 apply a Reynolds-number factor below a valve Re of "
+           "about 1e4 (from memory)"),
+    "Hooper 2-K": (1.0, "2-K: K1/Re carries the laminar rise",
+                   "Hooper (1981): laminar and turbulent flow (from memory)"),
+    "Darby 3-K": (1.0, "3-K: K1/Re carries the laminar rise",
+                  "Darby (2001): laminar and turbulent flow (from memory)"),
+}
+
+
+def fitting_re_range(fitting) -> tuple:
+    """``(Re_low, words, source)`` of the method a row uses (:data:`FITTING_RE_RANGES`).
+
+    >>> fitting_re_range(Fitting("valve_gate"))[0]
+    10000.0
+    """
+    kind = FITTING_KINDS[fitting.kind]
+    method = kind.method
+    if fitting.params.get("method") == "Darby 3-K":
+        method = "Darby 3-K"
+    return FITTING_RE_RANGES[method]
+
+
+def fitting_re_findings(fitting, Re, subject: str = "") -> list:
+    """A CHECK where a row's K is used at a Re below the range its method's source covers.
+
+    Parameters
+    ----------
+    fitting : Fitting
+    Re : array_like
+        Reynolds numbers in the row's pipe, > 0 [-]
+    subject : str
+        Where the row sits.
+
+    Examples
+    --------
+    >>> fitting_re_findings(Fitting("valve_gate"), [500.0])[0].severity.value
+    'check'
+    """
+    from kit.core.findings import Finding, Severity
+
+    Re = np.atleast_1d(np.asarray(Re, dtype=float))
+    low, words, source = fitting_re_range(fitting)
+    if Re.size == 0 or float(Re.min()) >= low:
+        return []
+    hint = ""
+    if fitting.kind in VALVE_DARBY_ROWS and fitting.params.get("method") != "Darby 3-K":
+        hint = "; this valve has a Re-dependent Darby 3-K row: set method = 'Darby 3-K'"
+    elif FITTING_KINDS[fitting.kind].method in ("fixed K", "geometry", "Cv", "Kv"):
+        hint = "; a Hooper 2-K or Darby 3-K row models the laminar rise of K"
+    sub = (f"{subject}: " if subject else "") + f"fitting {_row(fitting)}"
+    return [Finding(Severity.CHECK, sub, "Reynolds number", float(Re.min()), "-",
+                    f">= {low:g} (range of the K method)",
+                    f"K used below the Re range its source covers ({words}); the loss is "
+                    f"likely understated{hint}", source, low=low)]
+
+
 # ---------------------------------------------------------------- registry
 
 _NONNEG_K = ParamSpec("K", "-", "loss coefficient K", 0.0, 1e4, low_inclusive=True)
@@ -384,6 +483,9 @@ _STYLE_RED = ParamSpec("style", "-", "reducer shape", choices=("sudden", "conica
 _CONE = ParamSpec("angle", "deg", "included cone angle (conical style)", 0.0, 180.0,
                   default=180.0)
 _METH_RED = ParamSpec("method", "-", "method", choices=("Rennels", "Crane"), default="Rennels")
+_METH_VALVE = ParamSpec("method", "-", "K method: Crane (fully turbulent, constant) or "
+                        "Darby 3-K (Re-dependent; full bore β = 1 only)",
+                        choices=("Crane", "Darby 3-K"), default="Crane")
 
 
 def _m(choices, default="Rennels"):
@@ -436,11 +538,11 @@ _KINDS = (
                 (ParamSpec("D2", "m", "downstream (larger) bore", *D_RANGE), _STYLE_RED, _CONE,
                  _METH_RED),
                 SOURCES["Rennels"], _k_enlargement),
-    FittingKind("valve_gate", "Gate valve, fully open", "Crane valve", (_BETA, _TAPER),
+    FittingKind("valve_gate", "Gate valve, fully open", "Crane valve", (_BETA, _TAPER, _METH_VALVE),
                 SOURCES["Crane"], _valve("K_gate_valve_Crane", seat=True, angle=True)),
-    FittingKind("valve_globe", "Globe valve, fully open", "Crane valve", (_BETA,),
+    FittingKind("valve_globe", "Globe valve, fully open", "Crane valve", (_BETA, _METH_VALVE),
                 SOURCES["Crane"], _valve("K_globe_valve_Crane", seat=True)),
-    FittingKind("valve_ball", "Ball valve, fully open", "Crane valve", (_BETA, _TAPER),
+    FittingKind("valve_ball", "Ball valve, fully open", "Crane valve", (_BETA, _TAPER, _METH_VALVE),
                 SOURCES["Crane"], _valve("K_ball_valve_Crane", seat=True, angle=True)),
     FittingKind("valve_butterfly", "Butterfly valve, fully open", "Crane valve",
                 (ParamSpec("style", "-", "disc design",
@@ -453,20 +555,21 @@ _KINDS = (
                 (_BETA, _TAPER,
                  ParamSpec("style", "-", "body", choices=(
                      "straight-through", "3-way, flow straight through", "3-way, flow 90 deg"),
-                     default="straight-through")),
+                     default="straight-through"), _METH_VALVE),
                 SOURCES["Crane"],
                 _valve("K_plug_valve_Crane", seat=True, angle=True,
                        style={"straight-through": 0, "3-way, flow straight through": 1,
                               "3-way, flow 90 deg": 2})),
     FittingKind("valve_check_swing", "Swing check valve", "Crane valve",
                 (ParamSpec("style", "-", "body (angled N = 100, straight N = 50)",
-                           choices=("angled", "straight"), default="angled"),),
+                           choices=("angled", "straight"), default="angled"), _METH_VALVE),
                 SOURCES["Crane"],
                 _valve("K_swing_check_valve_Crane", style={"angled": True, "straight": False},
                        style_arg="angled")),
     FittingKind("valve_check_lift", "Lift check valve", "Crane valve",
                 (_BETA, ParamSpec("style", "-", "body (angled N = 55, straight N = 600)",
-                                  choices=("angled", "straight"), default="angled")),
+                                  choices=("angled", "straight"), default="angled"),
+                 _METH_VALVE),
                 SOURCES["Crane"],
                 _valve("K_lift_check_valve_Crane", seat=True,
                        style={"angled": True, "straight": False}, style_arg="angled")),
@@ -476,7 +579,7 @@ _KINDS = (
                 SOURCES["Crane"], _valve("K_tilting_disk_check_valve_Crane", disc=True)),
     FittingKind("valve_diaphragm", "Diaphragm valve, fully open", "Crane valve",
                 (ParamSpec("style", "-", "body", choices=("weir", "straight-through"),
-                           default="weir"),),
+                           default="weir"), _METH_VALVE),
                 SOURCES["Crane"],
                 _valve("K_diaphragm_valve_Crane", style={"weir": 0, "straight-through": 1})),
     FittingKind("valve_foot", "Foot valve with strainer", "Crane valve",
@@ -550,6 +653,16 @@ class Fitting:
                 raise InputError(f"{spec.name} (fitting {row})", None,
                                  f"is required for kind '{self.kind}' ({spec.label} "
                                  f"[{spec.unit}])")
+        if full.get("method") == "Darby 3-K" and self.kind in VALVE_DARBY_ROWS:
+            rows = VALVE_DARBY_ROWS[self.kind]
+            if full.get("beta", 1.0) != 1.0:
+                raise InputError(f"method (fitting {row})", "Darby 3-K",
+                                 f"needs a full-bore valve (beta = 1, not {full['beta']:g}): "
+                                 "Darby's table has full-bore valves only")
+            if rows.get(full.get("style"), rows.get(None)) is None:
+                raise InputError(f"method (fitting {row})", "Darby 3-K",
+                                 f"has no Darby row for style {full.get('style')!r}; choices: "
+                                 f"{', '.join(repr(k) for k in rows)}")
         object.__setattr__(self, "params", FrozenParams(full))
 
     def as_dict(self) -> dict:
@@ -638,6 +751,8 @@ def _row_K(fitting: Fitting, Re: np.ndarray, D: float, roughness: float,
     """
     kind = FITTING_KINDS[fitting.kind]
     p = dict(fitting.params)
+    if fitting.kind in VALVE_DARBY_ROWS:
+        p["_darby_rows"] = VALVE_DARBY_ROWS[fitting.kind]
     if fd_memo is not None:
         p["_fd"] = fd_memo
     if fitting.kind in _NEEDS_ROW:
@@ -675,6 +790,9 @@ def total_K_unchecked(fittings, Re: np.ndarray, D: float, roughness: float,
     ``Re`` when the caller has it (the Rennels bend uses it instead of solving Colebrook
     again). Used by :class:`kit.core.line.Line` on its hot path."""
     total = np.zeros_like(Re)
+    if fd is not None and np.any(Re < RE_FD_FLOOR):
+        # the same rule as fitting_K: friction inside fitting methods held at the floor
+        fd = np.where(Re < RE_FD_FLOOR, _fd(Re, D, roughness), fd)
     memo = [] if fd is None else [fd]
 
     def fd_at():
@@ -699,7 +817,9 @@ def describe(fitting: Fitting) -> dict:
     method = kind.method
     source = kind.source
     chosen = fitting.params.get("method")
-    if chosen is not None:
+    if chosen == "Darby 3-K" and fitting.kind in VALVE_DARBY_ROWS:
+        method, source = "Darby 3-K", SOURCES["Darby"]
+    elif chosen is not None and not kind.method.startswith(chosen):
         method = f"{kind.method}: {chosen}"
         source = SOURCES.get(chosen.split()[0], source)
     if fitting.kind in ("contraction", "enlargement"):

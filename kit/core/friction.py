@@ -25,10 +25,12 @@ from __future__ import annotations
 import numpy as np
 
 from kit.core.findings import Finding, Severity
+from kit.errors import OutOfRangeError
 
 __all__ = [
     "RE_LAMINAR", "RE_TURBULENT", "darcy_friction", "colebrook_clamond", "regime",
-    "transition_findings", "FRICTION_METHOD",
+    "transition_findings", "FRICTION_METHOD", "FRICTION_LIMITS", "check_friction_inputs",
+    "friction_range_findings",
 ]
 
 RE_LAMINAR = 2000.0
@@ -44,6 +46,31 @@ FRICTION_METHOD = {
         "Res. 48(7), 3665–3671. doi:10.1021/ie801626g",
     ],
     "valid": {"Re": (0.0, 1e8), "rel_roughness": (0.0, 0.05)},
+}
+
+#: Validity policy of :func:`darcy_friction`, per input, as data. ``valid`` is the range the
+#: method is written for; between ``valid`` and ``refuse`` the answer is an extrapolation
+#: that is reasonable and is *flagged* (:func:`friction_range_findings`, a CHECK); outside
+#: ``refuse`` the input is *refused* (:class:`~kit.errors.OutOfRangeError`). Negative and
+#: non-finite values are always refused.
+#:
+#: - Re above 1e8: Colebrook tends to the Prandtl smooth-pipe law or the fully-rough law,
+#:   both independent of how high Re goes, so extrapolation is reasonable; past 1e10 no
+#:   liquid line runs and the number is almost surely a unit error — refused.
+#: - ε/D above 0.05 (the top of the Moody chart; Nikuradse's sand-grain data reach about
+#:   1/30, from memory): the fully-rough law is extrapolated, flagged; past 0.1 the "pipe"
+#:   is a channel of obstructions, not a rough pipe — refused. ε ≥ D is refused by
+#:   :class:`kit.core.line.Segment` already.
+FRICTION_LIMITS = {
+    "Re": {"field": "Reynolds number", "unit": "-", "valid": (0.0, 1e8),
+           "refuse": (0.0, 1e10), "between": "flag",
+           "why": "Colebrook's smooth and fully-rough asymptotes do not depend on Re",
+           "source": "Colebrook (1939); Moody (1944) chart to Re 1e8; limits: this kit"},
+    "rel_roughness": {"field": "relative roughness ε/D", "unit": "-", "valid": (0.0, 0.05),
+                      "refuse": (0.0, 0.1), "between": "flag",
+                      "why": "the fully-rough law extrapolated beyond the Moody chart",
+                      "source": "Moody (1944) chart to ε/D 0.05; Nikuradse (1933) sand-grain "
+                                "data to about 1/30 (from memory); limits: this kit"},
 }
 
 _LN10_18574 = 0.1239681863354175460160858261654858382699   # ln(10)/18.574
@@ -99,6 +126,49 @@ def colebrook_clamond(Re, rel_roughness):
     return _HALF_LN10_SQ / (F * F)
 
 
+def check_friction_inputs(Re, rel_roughness):
+    """Refuse Re or ε/D outside :data:`FRICTION_LIMITS` ``refuse`` (negative, non-finite,
+    Re > 1e10, ε/D > 0.1) with :class:`~kit.errors.OutOfRangeError` naming the field.
+
+    >>> check_friction_inputs(-5.0, 0.0)
+    Traceback (most recent call last):
+    ...
+    kit.errors.OutOfRangeError: 'Reynolds number' must be between 0 and 1e+10, not -5
+    """
+    for key, arr in (("Re", Re), ("rel_roughness", rel_roughness)):
+        a = np.asarray(arr, dtype=float)
+        lo, hi = FRICTION_LIMITS[key]["refuse"]
+        if a.size == 0 or (a.min() >= lo and a.max() <= hi):   # NaN fails both: refused
+            continue
+        bad = ~np.isfinite(a) | (a < lo) | (a > hi)
+        if bad.any():
+            lim = FRICTION_LIMITS[key]
+            raise OutOfRangeError(lim["field"], float(a[bad].flat[0]), None, low=lo, high=hi,
+                                  low_inclusive=True)
+
+
+def friction_range_findings(subject: str, Re, rel_roughness) -> list[Finding]:
+    """CHECK findings where Re or ε/D lies between the valid and the refused ranges of
+    :data:`FRICTION_LIMITS` (an extrapolation the kit makes, and says so).
+
+    >>> friction_range_findings("run A", [1e9], 1e-4)[0].quantity
+    'Reynolds number'
+    """
+    out = []
+    for key, arr in (("Re", Re), ("rel_roughness", rel_roughness)):
+        a = np.atleast_1d(np.asarray(arr, dtype=float))
+        lim = FRICTION_LIMITS[key]
+        lo, hi = lim["valid"]
+        over = a > hi
+        if over.any():
+            out.append(Finding(Severity.CHECK, subject, lim["field"], float(a[over].max()), "-",
+                               f"<= {hi:g} (valid range of the friction method)",
+                               f"outside the range the friction method is written for: "
+                               f"{lim['why']}; the value is extrapolated", lim["source"],
+                               high=hi))
+    return out
+
+
 def darcy_friction(Re, rel_roughness):
     """Darcy friction factor for any Re ≥ 0, continuous across the transition zone.
 
@@ -118,7 +188,10 @@ def darcy_friction(Re, rel_roughness):
     Notes
     -----
     Policy as in the module docstring: 64/Re below Re 2000, Colebrook above 4000, linear in
-    Re between. Relative roughness above 0.05 is beyond the Moody chart.
+    Re between. Inputs are checked against :data:`FRICTION_LIMITS`: negative, non-finite,
+    Re > 1e10 or ε/D > 0.1 raise :class:`~kit.errors.OutOfRangeError`; Re > 1e8 and
+    ε/D > 0.05 are answered (an extrapolation) and reported by
+    :func:`friction_range_findings`.
 
     Examples
     --------
@@ -132,6 +205,7 @@ def darcy_friction(Re, rel_roughness):
     """
     Re = np.asarray(Re, dtype=float)
     eD = np.asarray(rel_roughness, dtype=float)
+    check_friction_inputs(Re, eD)
     with np.errstate(divide="ignore", invalid="ignore"):
         out = colebrook_clamond(np.maximum(Re, RE_TURBULENT), eD)
         out = np.where(Re < RE_LAMINAR, 64.0 / Re, out)

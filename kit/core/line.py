@@ -9,7 +9,13 @@ bore of the segment it sits in:
 .. math:: h_L = \\left(f\\frac{L}{D} + \\sum K\\right)\\frac{V^2}{2g}
 
 Fitting losses are lumped at the end of their segment in the profile. Put a station at every
-high point (end a segment there) so the profile sees it.
+high point (end a segment there) so the profile sees it. Each :class:`Station` carries the
+absolute pressure ``p`` and the gauge pressure ``p_gauge``; :func:`profile_findings` checks
+the lowest against vapour pressure with a margin and flags every sub-atmospheric station
+(air valve / vacuum rating); words in findings mark kPa(abs) or kPa(g).
+
+Validity: a segment refuses roughness not smaller than its bore and ε/D beyond
+:data:`kit.core.friction.FRICTION_LIMITS`; negative flows are refused by segments and lines.
 
 Example
 -------
@@ -30,10 +36,16 @@ from functools import cached_property
 import numpy as np
 
 from kit.core.findings import Finding, Severity
-from kit.core.friction import darcy_friction, transition_findings
+from kit.core.friction import (
+    FRICTION_LIMITS,
+    darcy_friction,
+    friction_range_findings,
+    transition_findings,
+)
 from kit.errors import InputError, OutOfRangeError, check_range
 
-__all__ = ["G", "Segment", "Line", "Profile", "Station", "vapour_findings", "RE_FLOOR"]
+__all__ = ["G", "Segment", "Line", "Profile", "Station", "vapour_findings", "profile_findings",
+           "RE_FLOOR"]
 
 #: Standard gravity [m/s²] (CGPM 1901, exact).
 G = 9.80665
@@ -83,6 +95,12 @@ class Segment:
                     low=-self.length, high=self.length, low_inclusive=True)
         if not isinstance(self.fittings, tuple):
             object.__setattr__(self, "fittings", tuple(self.fittings))
+        D, eps = float(self.pipe.Di), float(self.pipe.roughness)
+        check_range(f"roughness of the pipe in segment '{self.name}'", eps, "m", low=0.0,
+                    high=D, low_inclusive=True, high_inclusive=False)
+        hi = FRICTION_LIMITS["rel_roughness"]["refuse"][1]
+        check_range(f"relative roughness ε/D of segment '{self.name}' (ε {eps:.4g} m, "
+                    f"bore {D:.4g} m)", eps / D, "-", low=0.0, high=hi, low_inclusive=True)
 
     @property
     def station(self) -> str:
@@ -93,15 +111,16 @@ class Segment:
         return np.asarray(Q, dtype=float) / self.pipe.area
 
     def reynolds(self, Q, state):
-        """Reynolds number [-] for flows ``Q`` [m³/s] of a liquid state (rho, mu)."""
-        return state.rho * self.velocity(Q) * self.pipe.Di / state.mu
+        """Reynolds number [-] for flows ``Q`` [m³/s] (≥ 0) of a liquid state (rho, mu)."""
+        return state.rho * self.velocity(_flows(Q)) * self.pipe.Di / state.mu
 
     def loss_terms(self, Q, state):
         """Friction and fitting heads [m] and the Re array, over flows ``Q`` [m³/s].
 
-        Returns ``(h_friction, h_fittings, Re)`` each shaped like ``Q``.
+        Returns ``(h_friction, h_fittings, Re)`` each shaped like ``Q``. Negative or
+        non-finite flows are refused, as in :class:`Line`.
         """
-        V = self.velocity(Q)
+        V = self.velocity(_flows(Q))
         Re = np.maximum(state.rho * V * self.pipe.Di / state.mu, RE_FLOOR)
         eD = self.pipe.roughness / self.pipe.Di
         f = darcy_friction(Re, eD)
@@ -282,23 +301,40 @@ class Line:
         return Station(name, x, z, p, p - p_baro, V, hgl, hgl + V * V / (2 * G))
 
     def findings(self, Q, state) -> list[Finding]:
-        """Transition-zone findings for each segment over flows ``Q``."""
+        """Transition-zone and friction-range findings for each segment over flows ``Q``,
+        and a finding for each fitting row used below the Re range its source covers."""
         out = []
         Q = np.atleast_1d(_flows(Q))
         for s in self.segments:
-            out += transition_findings(f"segment '{s.name}' of line '{self.name}'",
-                                       s.reynolds(Q, state))
+            sub = f"segment '{s.name}' of line '{self.name}'"
+            Re = s.reynolds(Q, state)
+            out += transition_findings(sub, Re)
+            out += friction_range_findings(sub, Re, s.pipe.roughness / s.pipe.Di)
+            if s.fittings:
+                from kit.core.fittings import fitting_re_findings
+
+                live = Re[Re > 0]
+                if live.size:
+                    for f in s.fittings:
+                        out += fitting_re_findings(f, live, subject=sub)
         return out
+
+
+def _kpa(p: float, basis: str) -> str:
+    return f"{p / 1000:.4g} kPa({basis})"
 
 
 def vapour_findings(profile: Profile, pv: float | None, margin_head: float = 2.0,
                     subject: str | None = None) -> list[Finding]:
     """Lowest pressure in a line against vapour pressure and atmosphere.
 
-    FAIL where the lowest absolute pressure is at or below the vapour pressure; CHECK where
-    it is within ``margin_head`` [m of liquid] of it; CHECK where it is below atmospheric
-    (vacuum: air comes out of solution and leaks in at joints; a siphon crest). The margin
-    is common practice, no source; it is the user's to set.
+    FAIL where the lowest absolute pressure is at or below the vapour pressure (and, where
+    the computed absolute pressure is below zero, the rule says the state is impossible:
+    the column breaks and the flow is not as computed); CHECK where it is within
+    ``margin_head`` [m of liquid] of it; CHECK where it is below atmospheric (vacuum: air
+    comes out of solution and leaks in at joints; a siphon crest). The margin is common
+    practice, no source; it is the user's to set. Pressures in the words are marked
+    kPa(abs) or kPa(g).
 
     Parameters
     ----------
@@ -323,22 +359,91 @@ def vapour_findings(profile: Profile, pv: float | None, margin_head: float = 2.0
     subject = subject or f"station '{low.name}' of line '{profile.line}'"
     margin = (low.p - pv) / (profile.rho * G)
     src = "common practice, no source (margin user-set)"
+    where = (f"lowest pressure {_kpa(low.p, 'abs')} = {_kpa(low.p_gauge, 'g')} at "
+             f"'{low.name}', vapour pressure {_kpa(pv, 'abs')}")
     out = []
     if low.p <= pv:
+        rule = ("liquid boils (cavitates) where pressure falls to vapour pressure; flow "
+                "breaks")
+        if low.p < 0.0:
+            rule += ("; the computed absolute pressure is below zero, an impossible state: "
+                     "the liquid column parts and the flow cannot be as computed")
         out.append(Finding(Severity.FAIL, subject, "pressure above vapour pressure", margin, "m",
-                           "> 0 m", "liquid boils (cavitates) where pressure falls to vapour "
-                           "pressure; flow breaks", "definition of vapour pressure"))
+                           "> 0 m", f"{rule} ({where})", "definition of vapour pressure",
+                           low=margin_head))
     elif margin < margin_head:
         out.append(Finding(Severity.CHECK, subject, "pressure above vapour pressure", margin, "m",
-                           f">= {margin_head:.3g} m", "lowest pressure close to vapour pressure",
-                           src, low=margin_head))
+                           f">= {margin_head:.3g} m", f"lowest pressure close to vapour pressure "
+                           f"({where})", src, low=margin_head))
     else:
         out.append(Finding(Severity.PASS, subject, "pressure above vapour pressure", margin, "m",
-                           f">= {margin_head:.3g} m", "lowest pressure clear of vapour pressure",
-                           src, low=margin_head))
+                           f">= {margin_head:.3g} m", f"lowest pressure clear of vapour pressure "
+                           f"({where})", src, low=margin_head))
     if low.p < profile.p_baro and low.p > pv:
         out.append(Finding(Severity.CHECK, subject, "gauge pressure", low.p_gauge, "Pa",
-                           ">= 0 Pa(g)", "below atmospheric: siphon or suction lift; air "
-                           "release and in-leakage, vacuum rating of pipe and joints",
+                           ">= 0 Pa(g)", f"below atmospheric ({_kpa(low.p_gauge, 'g')}): siphon, "
+                           "high point or suction lift; air release and in-leakage — an air "
+                           "valve (air release / vacuum break) and the vacuum rating of pipe "
+                           "and joints must be considered",
+                           "common practice, no source"))
+    return out
+
+
+def profile_findings(profile: Profile, pv: float | None, margin_head: float = 2.0,
+                     subject: str | None = None) -> list[Finding]:
+    """Every check of a line profile: :func:`vapour_findings` at the lowest station, and a
+    CHECK for each other station below atmospheric pressure (air valve / vacuum rating).
+
+    ``pv=None`` gives a CHECK asking for a vapour pressure instead of raising.
+
+    Parameters
+    ----------
+    profile : Profile
+    pv : float or None
+        Vapour pressure [Pa abs].
+    margin_head : float
+        Required margin above vapour pressure [m of liquid].
+    subject : str, optional
+        Subject prefix (default: the line's name).
+
+    Examples
+    --------
+    >>> a = Station("start", 0, 0.0, 150000.0, 48675.0, 1.0, 0.0, 0.0)
+    >>> b = Station("crest", 50, 12.0, 60000.0, -41325.0, 1.0, 0.0, 0.0)
+    >>> c = Station("knee", 80, 11.0, 80000.0, -21325.0, 1.0, 0.0, 0.0)
+    >>> fs = profile_findings(Profile("L", 0.01, (a, b, c), 101325.0, 998.0), 2339.0)
+    >>> [f.quantity for f in fs]
+    ['pressure above vapour pressure', 'gauge pressure', 'gauge pressure']
+    """
+    base = subject or f"line '{profile.line}'"
+    low = profile.lowest
+    if pv is None:
+        out = [Finding(Severity.CHECK, f"{base}, station '{low.name}'",
+                       "pressure above vapour pressure", float("nan"), "m",
+                       "a vapour pressure is required",
+                       f"no vapour-pressure model for this liquid: lowest pressure "
+                       f"{_kpa(low.p, 'abs')} not checked against it",
+                       "definition of vapour pressure")]
+        if low.p < 0.0:
+            out.append(Finding(Severity.FAIL, f"{base}, station '{low.name}'",
+                               "absolute pressure", low.p, "Pa", ">= 0 Pa(abs)",
+                               f"the computed absolute pressure {_kpa(low.p, 'abs')} is below "
+                               "zero, an impossible state: the liquid column parts and the flow "
+                               "cannot be as computed", "definition of absolute pressure"))
+        if low.p < profile.p_baro:
+            out.append(Finding(Severity.CHECK, f"{base}, station '{low.name}'", "gauge pressure",
+                               low.p_gauge, "Pa", ">= 0 Pa(g)",
+                               f"below atmospheric ({_kpa(low.p_gauge, 'g')}): air valve and "
+                               "vacuum rating to be considered", "common practice, no source"))
+    else:
+        out = vapour_findings(profile, pv, margin_head, f"{base}, station '{low.name}'")
+    for st in profile.stations:
+        if st is low or st.p >= profile.p_baro:
+            continue
+        out.append(Finding(Severity.CHECK, f"{base}, station '{st.name}'", "gauge pressure",
+                           st.p_gauge, "Pa", ">= 0 Pa(g)",
+                           f"below atmospheric ({_kpa(st.p_gauge, 'g')} = "
+                           f"{_kpa(st.p, 'abs')}): an air valve (air release / vacuum break) "
+                           "and the vacuum rating of pipe and joints must be considered",
                            "common practice, no source"))
     return out

@@ -36,13 +36,21 @@ from scipy.optimize import brentq
 
 from kit.core.findings import CAUTIONS, Finding, Severity
 from kit.core.motors import select_motor
-from kit.errors import InputError, NoSolutionError, UnknownChoiceError, check_choice, check_range
+from kit.errors import (
+    InputError,
+    NoSolutionError,
+    OutOfRangeError,
+    UnknownChoiceError,
+    check_choice,
+    check_range,
+)
 
 __all__ = [
     "G", "NPSH_MARGINS", "BEP_REGIONS", "J_PER_KWH", "OperatingPoint", "Condition",
     "operating_point", "operating_points", "npsh_available", "npsh_findings", "bep_findings",
     "annual_energy", "joules_to_kWh", "annual_cost", "ControlCase", "ControlComparison",
-    "compare_control",
+    "compare_control", "SPEED_RANGE", "TRIM_NPSHR_RULE", "check_pump_speed", "DutyEnergy",
+    "PumpDutyEnergy", "EnergyComparison", "energy_at_duty", "CONTROLS",
 ]
 
 #: Standard gravity [m/s²] (CGPM 1901).
@@ -79,6 +87,70 @@ BEP_REGIONS: dict[str, dict] = {
                             "label": "specific speed ~4500 and above (US units)",
                             "source": _HI963},
 }
+
+
+#: Pump speeds accepted for an operating point, as fractions of the datasheet speed. Outside
+#: it the affinity laws are not a model of the pump (and 1e6 rpm gave a NaN point): refused.
+#: The range is this kit's (common practice, no source); AFFINITY_LIMITS in kit.core.pump
+#: flag the accuracy inside it.
+SPEED_RANGE = {"ratio": (0.1, 1.5),
+               "source": "common practice, no source: affinity scaling is not a pump model "
+                         "far from the tested speed; above the datasheet speed the maker "
+                         "must confirm casing, seal and motor"}
+
+#: Rule for NPSHr of a trimmed impeller (stated; a finding carries it).
+TRIM_NPSHR_RULE = {
+    "rule": "NPSHr is not reduced by trimming: at each flow the larger of the trimmed curve "
+            "(full-diameter NPSHr moved along the flow by the trim law, as kit.core.pump "
+            "does) and the full-diameter NPSHr at that flow",
+    "source": "common practice, from memory (trimming does not change the impeller eye, "
+              "which sets suction performance; a trimmed impeller may need more NPSH at a "
+              "given flow); the maker's trimmed-impeller NPSHr governs",
+}
+
+
+def check_pump_speed(pump) -> None:
+    """Refuse a pump (or any member of a set) running outside :data:`SPEED_RANGE` of its
+    datasheet speed, with :class:`~kit.errors.OutOfRangeError` naming the pump.
+
+    >>> from kit.core.pump import PumpCurve
+    >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
+    >>> check_pump_speed(p.at_speed(1e6))  # doctest: +ELLIPSIS
+    Traceback (most recent call last):
+    ...
+    kit.errors.OutOfRangeError: 'speed of pump 'pump' (datasheet 1450 rpm)' must be ...
+    """
+    lo, hi = SPEED_RANGE["ratio"]
+    for p in getattr(pump, "pumps", None) or (pump,):
+        n = getattr(p, "speed_rpm", None)
+        n0 = getattr(p, "datasheet_speed_rpm", None)
+        if n is None or n0 is None:
+            continue
+        if not (np.isfinite(n) and lo * n0 <= n <= hi * n0):
+            raise OutOfRangeError(f"speed of pump '{p.name}' (datasheet {n0:g} rpm)", float(n),
+                                  "rpm", low=lo * n0, high=hi * n0, low_inclusive=True)
+
+
+def _trim_ratio(pump) -> float:
+    D, D0 = getattr(pump, "diameter", None), getattr(pump, "datasheet_diameter", None)
+    if D is None or D0 is None or not D0:
+        return 1.0
+    return float(D) / float(D0)
+
+
+def _npshr(pump, Q: float) -> tuple[float, list]:
+    """NPSHr at Q with :data:`TRIM_NPSHR_RULE` applied to a trimmed impeller."""
+    if not pump.has_npshr:
+        return float("nan"), []
+    v = float(pump.npshr(Q))
+    r = _trim_ratio(pump)
+    if r >= 1.0 - 1e-12:
+        return v, []
+    full = float(pump.npshr(Q * r))   # full-diameter NPSHr at Q (trim law moved it to Q/r)
+    return max(v, full), [Finding(
+        Severity.CHECK, f"pump '{pump.name}' trimmed to {r:.3g} of its datasheet diameter",
+        "NPSHr on a trimmed impeller", max(v, full), "m", "maker's trimmed NPSHr",
+        TRIM_NPSHR_RULE["rule"], TRIM_NPSHR_RULE["source"])]
 
 
 @dataclass(frozen=True)
@@ -172,6 +244,7 @@ def operating_point(pump, system_head: Callable, Q_max: float | None = None, *,
     """
     check_choice("NPSH margin application", npsh_application, NPSH_MARGINS)
     check_choice("BEP region", bep_region, BEP_REGIONS)
+    check_pump_speed(pump)
     q_top = pump.q_end if Q_max is None else check_range("Q_max", Q_max, "m³/s", low=0.0)
     subject = f"pump '{pump.name}'" + (f" at {label}" if label else "")
     Qs = np.linspace(0.0, q_top, max(int(samples), 2))
@@ -179,6 +252,10 @@ def operating_point(pump, system_head: Callable, Q_max: float | None = None, *,
     Hs = np.asarray(system_head(Qs), dtype=float)
     if Hs.shape != Qs.shape or not np.all(np.isfinite(Hs)):
         raise InputError("system head", "array", f"must return one finite head per flow ({Qs.size})")
+    if not np.all(np.isfinite(Hp)):
+        raise NoSolutionError("operating point" + (f" at {label}" if label else ""),
+                              f"the head curve of pump '{pump.name}' is not finite on 0 to "
+                              f"{q_top:.4g} m³/s")
     d = Hp - Hs
     tol = 1e-9 * max(1.0, abs(float(Hp[0])))
     if d[0] <= 0.0:
@@ -222,7 +299,8 @@ def operating_point(pump, system_head: Callable, Q_max: float | None = None, *,
     findings += pump.range_findings(Q, subject=subject)
 
     eta = float(pump.efficiency(Q)) if pump.has_efficiency else float("nan")
-    npshr = float(pump.npshr(Q)) if pump.has_npshr else float("nan")
+    npshr, trim_f = _npshr(pump, Q)
+    findings += trim_f
     power = float(pump.power(Q, rho)) if (rho is not None and pump.has_efficiency) else float("nan")
     members: tuple = ()
     bep_frac = float("nan")
@@ -258,11 +336,15 @@ def operating_point(pump, system_head: Callable, Q_max: float | None = None, *,
 
 
 def operating_points(pump, conditions: Mapping[str, Callable | Condition], Q_max: float | None = None,
-                     *, rho: float | None = None) -> list[OperatingPoint]:
+                     *, rho: float | None = None, errors: str = "raise") -> list[OperatingPoint]:
     """Operating points over a band of conditions, in the mapping's order.
 
     Each value is a system-head callable, or a :class:`Condition` (system head with its own
     density and NPSHa). Method as :func:`operating_point`.
+
+    ``errors="report"`` keeps a condition with no operating point in the list (never
+    dropped): an :class:`OperatingPoint` with ``Q`` and ``H`` NaN and a FAIL finding giving
+    the reason; ``"raise"`` (default) raises the :class:`~kit.errors.NoSolutionError`.
 
     >>> from kit.core.pump import PumpCurve
     >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
@@ -271,17 +353,29 @@ def operating_points(pump, conditions: Mapping[str, Callable | Condition], Q_max
     >>> [round(o.Q, 5) for o in ops]
     [0.01897, 0.02]
     """
+    check_choice("errors", errors, ("raise", "report"))
     out = []
     for label, cond in conditions.items():
-        if isinstance(cond, Condition):
-            out.append(operating_point(pump, cond.system_head, Q_max, label=str(label),
-                                       rho=cond.rho if cond.rho is not None else rho,
-                                       npsha=cond.npsha, npsh_application=cond.npsh_application))
-        elif callable(cond):
-            out.append(operating_point(pump, cond, Q_max, rho=rho, label=str(label)))
-        else:
-            raise InputError(f"condition '{label}'", type(cond).__name__,
-                             "must be a system-head callable or a Condition")
+        try:
+            if isinstance(cond, Condition):
+                out.append(operating_point(pump, cond.system_head, Q_max, label=str(label),
+                                           rho=cond.rho if cond.rho is not None else rho,
+                                           npsha=cond.npsha,
+                                           npsh_application=cond.npsh_application))
+            elif callable(cond):
+                out.append(operating_point(pump, cond, Q_max, rho=rho, label=str(label)))
+            else:
+                raise InputError(f"condition '{label}'", type(cond).__name__,
+                                 "must be a system-head callable or a Condition")
+        except NoSolutionError as exc:
+            if errors == "raise":
+                raise
+            nan = float("nan")
+            out.append(OperatingPoint(str(label), nan, nan, nan, nan, nan, nan, nan, (Finding(
+                Severity.FAIL, f"pump '{pump.name}' at {label}", "operating point", nan,
+                "m³/s", "an intersection of pump and system curves",
+                f"no operating point: {exc.reason}", "energy balance (pump head = system "
+                "head)"),)))
     return out
 
 
@@ -551,6 +645,7 @@ def compare_control(pump, system_head: Callable, Q_req: float, *, rho: float, ho
     """
     if hasattr(pump, "members_at"):
         raise UnknownChoiceError("pump for control comparison", "PumpSet", ["PumpCurve"])
+    check_pump_speed(pump)
     Q = check_range("required flow", Q_req, "m³/s", low=0.0)
     rho = check_range("density", rho, "kg/m³", low=0.0)
     H_req = _scalar(system_head, Q)
@@ -597,3 +692,251 @@ def compare_control(pump, system_head: Callable, Q_req: float, *, rho: float, ho
                             "generic PWM drive table", "VFD losses from fluids.VFD_efficiency",
                             "fluids.VFD_efficiency (GoHz.com generic PWM table)"))
     return ControlComparison(Q, H_req, thr, spd, joules_to_kWh(E_t - E_s), tuple(findings))
+
+
+#: Controls for :func:`energy_at_duty`.
+CONTROLS = {
+    "throttle": "pump at its curve speed delivers the required flow; a control valve burns "
+                "the head it makes above the system head",
+    "speed": "pump speed set by the affinity laws so that its head equals the system head "
+             "at the required flow (η moved along the affinity parabola); drive losses from "
+             "fluids.VFD_efficiency unless a drive efficiency is given",
+}
+
+
+@dataclass(frozen=True)
+class DutyEnergy:
+    """One pump at one band condition, delivering the required flow under one control (SI).
+
+    ``feasible`` False means the pump cannot meet the duty there (``note`` says why); the
+    numbers are then NaN — the row is kept, never dropped.
+    """
+
+    pump: str
+    condition: str
+    control: str
+    feasible: bool
+    Q: float
+    H_system: float
+    H_pump: float
+    valve_head: float
+    speed_rpm: float
+    speed_ratio: float
+    efficiency: float
+    shaft_power: float
+    drive_efficiency: float
+    input_power: float
+    annual_energy_kWh: float
+    kWh_per_m3: float
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class PumpDutyEnergy:
+    """A pump over every band condition at the required duty, and its summary."""
+
+    pump: str
+    rows: tuple
+    mean_kWh_per_m3: float
+    worst_kWh_per_m3: float
+    infeasible: tuple
+
+    @property
+    def meets_every_condition(self) -> bool:
+        return not self.infeasible
+
+
+@dataclass(frozen=True)
+class EnergyComparison:
+    """Candidate pumps compared at the same required duty under one stated control.
+
+    ``ranking``: pump names, those meeting every condition first by worst-case energy per
+    volume [kWh/m³], then the others (fewest infeasible conditions first).
+    """
+
+    Q_req: float
+    control: str
+    control_text: str
+    hours: float
+    pumps: tuple
+    ranking: tuple
+    findings: tuple = ()
+
+    def pump(self, name: str) -> PumpDutyEnergy:
+        for p in self.pumps:
+            if p.pump == name:
+                return p
+        raise UnknownChoiceError("pump", name, [p.pump for p in self.pumps])
+
+
+def _duty_row(pump, label, H_sys, Q, control, rho, hours, em, ed_given, max_ratio):
+    nan = float("nan")
+
+    def bad(note, H_pump=nan):
+        return DutyEnergy(pump.name, label, control, False, Q, H_sys, H_pump, nan, nan, nan,
+                          nan, nan, nan, nan, nan, nan, note)
+
+    if not np.isfinite(H_sys) or H_sys <= 0.0:
+        return bad(f"system head {H_sys:.4g} m at the required flow is not positive: no pump "
+                   "duty (the flow runs by gravity; a control valve sets it)")
+    n0 = pump.speed_rpm
+    if control == "throttle":
+        if Q > pump.q_end * (1 + 1e-12):
+            return bad(f"required flow {Q:.4g} m³/s beyond the pump's last datasheet flow "
+                       f"{pump.q_end:.4g} m³/s")
+        H_p = float(pump.head(Q))
+        if H_p < H_sys:
+            return bad(f"the pump makes {H_p:.4g} m at the required flow, below the system "
+                       f"head {H_sys:.4g} m: the duty is not met at this condition", H_p)
+        eta = float(pump.efficiency(Q))
+        P = float(pump.power(Q, rho))
+        r, n, ed, valve = 1.0, n0, 1.0, H_p - H_sys
+    else:
+        def g(r):
+            return r * r * float(pump.head(Q / r)) - H_sys
+
+        r_lo = max(Q / pump.q_end, 1e-3)
+        if r_lo > max_ratio:
+            return bad(f"the required flow needs more than {max_ratio:g} × the curve speed "
+                       "(beyond the datasheet flow range)")
+        rs = np.linspace(max_ratio, r_lo, 256)
+        vals = np.array([g(x) for x in rs])
+        if vals[0] < 0:
+            return bad(f"at {max_ratio:g} × the curve speed the pump makes "
+                       f"{vals[0] + H_sys:.4g} m at the required flow, below the system head "
+                       f"{H_sys:.4g} m", vals[0] + H_sys)
+        neg = np.flatnonzero(vals <= 0)
+        if neg.size == 0:
+            return bad("no speed within the datasheet flow range meets the system head "
+                       "(the pump would run off the end of its curve)")
+        k = int(neg[0])
+        r = float(rs[k]) if vals[k] == 0 else float(brentq(g, rs[k], rs[k - 1], xtol=1e-14))
+        n = r * n0
+        eta = float(pump.efficiency(Q / r))
+        P = r ** 3 * float(pump.power(Q / r, rho))
+        H_p, valve = H_sys, 0.0
+        if ed_given is not None:
+            ed = ed_given
+        else:
+            P_rated = float(pump.power(min(Q, pump.q_end), rho))
+            rating = select_motor(max(P_rated, P)).rating
+            ed = float(fluids.VFD_efficiency(rating, load=min(P / rating, 1.0)))
+    if not np.isfinite(P) or P <= 0:
+        return bad("no efficiency or power curve: the shaft power is unknown", H_p)
+    P_in = P / (em * ed)
+    kwh = P_in * hours / 1000.0
+    per_m3 = P_in / (Q * J_PER_KWH)
+    return DutyEnergy(pump.name, label, control, True, Q, H_sys, H_p, valve, n, r, eta, P, ed,
+                      P_in, kwh, per_m3)
+
+
+def energy_at_duty(pumps, conditions: Mapping[str, Callable | Condition], Q_req: float, *,
+                   control: str, rho: float | None = None, hours: float = 0.0,
+                   motor_efficiency: float, drive_efficiency: float | None = None,
+                   max_speed_ratio: float = 1.0) -> EnergyComparison:
+    """Candidate pumps compared at the **same required duty** under a stated control.
+
+    For every pump and every band condition the pump delivers the required flow
+    ``Q_req`` (not its uncontrolled operating point), so pumps are compared on the same
+    volume:
+
+    - ``control="throttle"``: the pump runs at its curve speed at ``Q_req``; the head it
+      makes above the system head, H_pump(Q_req) − H_sys(Q_req), is burned in a control
+      valve; shaft power is the pump's at ``Q_req``;
+    - ``control="speed"``: speed ratio r from r² H(Q_req / r) = H_sys(Q_req) (affinity laws,
+      Brent's method via :func:`scipy.optimize.brentq`), P = r³ P(Q_req / r); r at most
+      ``max_speed_ratio`` (default 1: no overspeed); drive efficiency given, or from
+      :func:`fluids.VFD_efficiency` at the load on the IEC motor rating.
+
+    Input power P_in = P_shaft / (η_motor η_drive); annual energy P_in × hours as if the year
+    were spent at that condition [kWh]; energy per volume P_in / Q_req [kWh/m³] (independent
+    of hours). A condition at which a pump cannot meet the duty is kept as an infeasible row
+    with the reason, never dropped.
+
+    Parameters
+    ----------
+    pumps : sequence of PumpCurve
+        Candidates at their curve speed [-]
+    conditions : mapping
+        Band condition label -> system-head callable [m³/s -> m], or a :class:`Condition`
+        (its ``rho`` used) [-]
+    Q_req : float
+        Required flow, > 0 [m³/s]
+    control : str
+        'throttle' or 'speed' (:data:`CONTROLS`) [-]
+    rho : float, optional
+        Liquid density where a condition does not carry one [kg/m³]
+    hours : float
+        Running hours per year, 0–8784 [h]
+    motor_efficiency : float
+        Motor efficiency, 0 < η ≤ 1 [-]
+    drive_efficiency : float, optional
+        Drive (VFD) efficiency for speed control, 0 < η ≤ 1 [-]
+    max_speed_ratio : float
+        Highest speed ratio allowed for speed control, 0.1–1.5 [-]
+
+    Returns
+    -------
+    EnergyComparison
+
+    Examples
+    --------
+    >>> from kit.core.pump import PumpCurve
+    >>> p = PumpCurve([0, 0.01, 0.02, 0.03], [40.0, 38.0, 32.0, 22.0], speed_rpm=2900,
+    ...               diameter=0.2, efficiency=[0.0, 0.55, 0.72, 0.68], name="A")
+    >>> c = energy_at_duty([p], {"max": lambda Q: 10 + 30000 * Q**2}, 0.015, control="throttle",
+    ...                    rho=998.0, hours=4000, motor_efficiency=0.9)
+    >>> round(c.pumps[0].rows[0].kWh_per_m3, 4)
+    0.1596
+    """
+    check_choice("control", control, tuple(CONTROLS))
+    Q = check_range("required flow", Q_req, "m³/s", low=0.0, high=100.0)
+    hours = check_range("running hours per year", hours, "h", low=0.0, high=8784.0,
+                        low_inclusive=True)
+    em = check_range("motor efficiency", motor_efficiency, "-", low=0.0, high=1.0)
+    ed = None if drive_efficiency is None else check_range("drive efficiency",
+                                                           drive_efficiency, "-", low=0.0,
+                                                           high=1.0)
+    lo, hi = SPEED_RANGE["ratio"]
+    max_ratio = check_range("maximum speed ratio", max_speed_ratio, "-", low=lo, high=hi,
+                            low_inclusive=True)
+    pumps = list(pumps)
+    if not pumps:
+        raise InputError("candidate pumps", 0, "must hold at least 1 pump")
+    if not conditions:
+        raise InputError("band conditions", 0, "must hold at least 1 condition")
+    out = []
+    for pump in pumps:
+        if hasattr(pump, "members_at"):
+            raise UnknownChoiceError("pump for energy at duty", "PumpSet", ["PumpCurve"])
+        check_pump_speed(pump)
+        rows = []
+        for label, cond in conditions.items():
+            fn = cond.system_head if isinstance(cond, Condition) else cond
+            if not callable(fn):
+                raise InputError(f"condition '{label}'", type(cond).__name__,
+                                 "must be a system-head callable or a Condition")
+            r_ho = cond.rho if isinstance(cond, Condition) and cond.rho is not None else rho
+            r_ho = check_range(f"density at '{label}'", r_ho, "kg/m³", low=0.0)
+            rows.append(_duty_row(pump, str(label), _scalar(fn, Q), Q, control, r_ho, hours,
+                                  em, ed, max_ratio))
+        ok = [x.kWh_per_m3 for x in rows if x.feasible]
+        out.append(PumpDutyEnergy(pump.name, tuple(rows),
+                                  float(np.mean(ok)) if ok else float("nan"),
+                                  float(np.max(ok)) if ok else float("nan"),
+                                  tuple(x.condition for x in rows if not x.feasible)))
+    full = sorted((p for p in out if p.meets_every_condition), key=lambda p: p.worst_kWh_per_m3)
+    part = sorted((p for p in out if not p.meets_every_condition),
+                  key=lambda p: (len(p.infeasible), np.nan_to_num(p.worst_kWh_per_m3,
+                                                                  nan=np.inf)))
+    findings = []
+    for p in part:
+        findings.append(Finding(Severity.FAIL, f"pump '{p.pump}'", "duty met at every condition",
+                                float(len(p.infeasible)), "-", "0 conditions missed",
+                                f"cannot deliver {Q:.4g} m³/s under {control} control at: "
+                                + "; ".join(f"{x.condition} ({x.note})" for x in p.rows
+                                            if not x.feasible),
+                                "energy balance (pump head ≥ system head at the required "
+                                "flow)"))
+    return EnergyComparison(Q, control, CONTROLS[control], hours, tuple(out),
+                            tuple(p.pump for p in full + part), tuple(findings))

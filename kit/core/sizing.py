@@ -32,13 +32,15 @@ Example
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
 
 from kit.core.criteria import DutyClass, erosional_findings
 from kit.core.findings import Finding, Severity, worst
-from kit.core.friction import darcy_friction, transition_findings
+from kit.core.fittings import fitting_re_findings
+from kit.core.friction import darcy_friction, friction_range_findings, transition_findings
 from kit.core.line import G, Line, Profile, Segment, Station, vapour_findings
 from kit.errors import HeadlineError, InputError, check_range
 
@@ -165,6 +167,31 @@ class Candidate:
         return worst(self.findings).value
 
     @property
+    def miss(self) -> tuple:
+        """How far the candidate is from passing: ``(excess, finding)``.
+
+        ``excess`` is the largest relative exceedance over its FAIL findings with a numeric
+        bound — (value − high)/|high| or (low − value)/|low| (per unit of the quantity where
+        the bound is 0) — 0.0 with no FAIL, ``inf`` for a candidate that could not be
+        computed or whose failing finding has no numeric bound.
+        """
+        if self.error:
+            return math.inf, None
+        best, which = 0.0, None
+        for f in self.findings:
+            if f.severity is not Severity.FAIL:
+                continue
+            if f.high is not None and f.value > f.high:
+                x = (f.value - f.high) / (abs(f.high) or 1.0)
+            elif f.low is not None and f.value < f.low:
+                x = (f.low - f.value) / (abs(f.low) or 1.0)
+            else:
+                x = math.inf
+            if which is None or x > best:
+                best, which = x, f
+        return best, which
+
+    @property
     def governing(self) -> str:
         """The rules behind the verdict, in words ('all criteria met' for a pass)."""
         if self.error:
@@ -204,6 +231,30 @@ class SizingResult:
     def findings(self) -> tuple:
         """The recommended candidate's findings (empty when there is none)."""
         return () if self.recommended is None else self.candidates[self.recommended].findings
+
+    @property
+    def counts(self) -> dict:
+        """Number of candidates per verdict: ``{'pass': n, 'check': n, 'fail': n}``."""
+        out = {"pass": 0, "check": 0, "fail": 0}
+        for c in self.candidates:
+            out[c.verdict] += 1
+        return out
+
+    @property
+    def reasons(self) -> tuple:
+        """For each candidate: ``{label, verdict, reason}`` (the governing rules in words)."""
+        return tuple({"label": _label(c), "verdict": c.verdict, "reason": c.governing}
+                     for c in self.candidates)
+
+    @property
+    def nearest_miss(self):
+        """Where no candidate passes or checks: ``(index, excess, finding)`` of the failing
+        candidate closest to passing (smallest :attr:`Candidate.miss`); else None."""
+        if self.recommended is not None or not self.candidates:
+            return None
+        misses = [c.miss for c in self.candidates]
+        i = min(range(len(misses)), key=lambda k: misses[k][0])
+        return i, misses[i][0], misses[i][1]
 
 
 def route_profiles(line: Line, state, Q, p_end: float, p_baro: float = 101325.0):
@@ -353,6 +404,9 @@ def size_line(route: Route, state, Q_design: float, pipes, duty: DutyClass,
     check_range("end pressure", p_end, "Pa", low=0.0, high=1e8, low_inclusive=True)
     check_range("vapour-pressure margin", vapour_margin, "m", low=0.0, high=1e3,
                 low_inclusive=True)
+    pipes = list(pipes)
+    if not pipes:
+        raise InputError("candidate pipes", 0, "must hold at least 1 pipe")
     flows = np.array([Q_min, Q, Q_max])
     labels = ("at minimum flow", "at design flow", "at maximum flow")
     out, profiles = [], []
@@ -385,8 +439,12 @@ def _candidate(route, state, pipe, duty, flows, labels, p_end, p_baro, margin, C
     if Q_max > Q:
         found += _at_max(duty, subject, float(V[2]), float(dp[2]))
     found += erosional_findings(subject + (f", {labels[2]}" if Q_max > Q else ""),
-                                float(V[2]), state.rho, C)
+                                float(V[2]), state.rho, C,
+                                applies=getattr(duty, "erosional_applies", False))
     found += transition_findings(subject, Re[flows > 0])
+    found += friction_range_findings(subject, Re[flows > 0], eD)
+    for fit in route.fittings:
+        found += fitting_re_findings(fit, Re[flows > 0], subject=subject)
     j_low = int(np.argmin([p.lowest.p for p in profs]))
     low = profs[j_low].lowest
     where = f"{subject}, station '{low.name}'"
@@ -441,8 +499,18 @@ def _recommend(cands, duty) -> tuple[int | None, str]:
             else:
                 why += "; it is the smallest candidate listed (a smaller size may also do)"
             return i, why
-    return None, (f"no candidate meets the {duty.label} criteria: add larger sizes, change the "
-                  "duty or its criteria, or split the flow")
+    why = f"no candidate meets the {duty.label} criteria"
+    misses = [c.miss for c in cands]
+    i = min(range(len(misses)), key=lambda k: misses[k][0])
+    x, f = misses[i]
+    if f is not None and math.isfinite(x):
+        bound = f.high if (f.high is not None and f.value > f.high) else f.low
+        why += (f"; nearest miss {_label(cands[i])}: {f.quantity} {f.value:.4g} {f.unit} "
+                f"against {f.limit} ({x * 100:.3g} % beyond {bound:.4g} {f.unit})")
+    else:
+        why += f"; nearest miss {_label(cands[i])}: {cands[i].governing}"
+    why += ". Each size: " + "; ".join(f"{_label(c)} — {c.governing}" for c in cands)
+    return None, why + ". Add larger sizes, change the duty or its criteria, or split the flow"
 
 
 def batch_friction(Q, D, roughness, rho, mu):

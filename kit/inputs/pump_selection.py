@@ -24,8 +24,10 @@ from dataclasses import dataclass
 from kit import units
 from kit.errors import DimensionError, HeadlineError, InputError, ScenarioError
 from kit.inputs.common import (
+    IntegrityOptions,
     _err,
     build_endpoint,
+    build_integrity,
     build_line,
     build_liquid,
     build_site,
@@ -58,6 +60,7 @@ class PumpInputs:
     tariff: float
     currency: str
     motor_series: str
+    integrity: IntegrityOptions = IntegrityOptions()
 
 
 def read(sc) -> PumpInputs:
@@ -75,7 +78,7 @@ def read(sc) -> PumpInputs:
     inp = PumpInputs(build_system(sc), tuple(build_pumps(sc)), q_req,
                      duty.get("npsh_application", "general"), hours,
                      float(op.get("tariff", 0.0)), str(op.get("currency", "")),
-                     op.get("motor_series", "IEC"))
+                     op.get("motor_series", "IEC"), build_integrity(doc))
     sc._built["inputs"] = inp
     return inp
 

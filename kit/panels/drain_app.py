@@ -53,7 +53,7 @@ import numpy as np
 from kit import units
 from kit.core import pipes as core_pipes
 from kit.core.drain import ORIFICE_CD, OrificeOutlet, PipedOutlet
-from kit.core.findings import cautions_for
+from kit.core.findings import Severity, cautions_for
 from kit.core.line import Segment
 from kit.errors import InputError
 from kit.inputs import tank_drainage as td_inputs
@@ -61,13 +61,14 @@ from kit.panels.base import (
     KIT_ERRORS,
     InvalidInput,
     Panel,
+    Refusals,
     check_system,
     error_html,
     error_widget,
     field_value,
+    locate_field,
     panel_value,
     section_heading,
-    stale_html,
 )
 from kit.panels.charts import Chart, Series, to_display
 from kit.panels.display import DisplaySwitch
@@ -87,6 +88,7 @@ from kit.panels.scenario_text import (
 )
 from kit.panels.tables import Column, ResultsTable
 from kit.panels.tank_picker import OutletMark, TankPicker, TankSetup
+from kit.panels.workspace import status_html
 from kit.scenario import build_fitting as scn_fitting
 from kit.studies import tank_drainage as td
 
@@ -216,6 +218,7 @@ class OutletPicker(Panel):
                          system=system)
         self.quantity_fields = (self.diameter, self.cd, self.elevation, self.length,
                                 self.fall, self.inlet, self.receiver_level)
+        self._refused: list = []
         self._wire()
         if outlet is None:
             self._show_kind()
@@ -289,6 +292,9 @@ class OutletPicker(Panel):
 
     def _recompute(self) -> None:
         self.message.value = ""
+        for f in self._refused:
+            f.unrefuse()
+        self._refused = []
         key = self.cd_source.value
         self.cd_note.value = ('<span class="hl-note">typed value; give its source in the '
                               "record</span>" if key == USER_CD else
@@ -313,7 +319,12 @@ class OutletPicker(Panel):
             self._store(None)
             return
         except KIT_ERRORS as exc:
-            self.message.value = error_html(str(exc))
+            field = locate_field(self.quantity_fields, exc)
+            if field is not None:   # beside the field it names, in its display units
+                field.refuse(field.explain_any(exc))
+                self._refused.append(field)
+            else:
+                self.message.value = error_html(str(exc))
             self._set_valid(False, str(exc))
             self._store(None)
             return
@@ -430,8 +441,6 @@ class DrainApp(widgets.VBox):
         self.whatif_nominal.add_class("hl-whatif-nominal")
         self.whatif_note = widgets.HTML("")
         self._fill_whatif(compare_size)
-        self.message = widgets.HTML("")
-        self.message.add_class("hl-app-message")
         self.summary = widgets.HTML("")
         self.summary.add_class("hl-drain-summary")
         self.times = ResultsTable(TIMES_COLUMNS, system=system)
@@ -445,6 +454,16 @@ class DrainApp(widgets.VBox):
         self.findings.add_class("hl-drain-findings")
         self.extra_cautions = widgets.HTML("")
         self.extra_cautions.add_class("hl-extra-cautions")
+        #: The workspace's one-line status: the drain time to the target (and the
+        #: what-if's), with the worst finding's verdict (CSS ``hl-td-status``).
+        self.status = widgets.HTML("")
+        self.status.add_class("hl-td-status")
+        self._workspace = None
+        self.refusals = Refusals((self.summary, self.times, self.level_chart, self.flow_chart,
+                                  self.findings, self.extra_cautions, self.status),
+                                 self._locate, lambda: self.system)
+        #: The banner over the results (CSS ``hl-stale-banner``, ``hl-app-message``).
+        self.message = self.refusals.banner
         self.switch = DisplaySwitch([], system=system)
         self.save_row = SaveRow(self.to_scenario, default_save_path(self.source_scenario))
         self._build_views()
@@ -478,7 +497,7 @@ class DrainApp(widgets.VBox):
                                 self.whatif_size, self.whatif_note)
         self.results_view = view(section_heading("Drain-down"), self.message, self.summary,
                                  widgets.HTML("<b>Times to levels</b>"), self.times)
-        self.charts_view = view(self.level_chart, self.flow_chart)
+        self.charts_view = view(self.message, self.level_chart, self.flow_chart)
         self.findings_view = view(section_heading("Findings"), self.findings, self.extra_cautions)
         self.save_view = view(section_heading("Save the inputs"), widgets.HTML(
             '<span class="hl-note">writes the tank, levels, liquid, outlet and what-if as '
@@ -496,6 +515,11 @@ class DrainApp(widgets.VBox):
         if self._hold:
             return
         self.recompute()
+
+    def _locate(self, exc):
+        """The input a kit error of the study is about (by the field it names), or None."""
+        return locate_field((*self.tank.quantity_fields, *self.outlet.quantity_fields,
+                             self.whatif_size, self.fluid.temperature), exc)
 
     def _on_tank(self, change) -> None:
         if self._hold:
@@ -785,7 +809,7 @@ class DrainApp(widgets.VBox):
         old_segs = list(old.get("segments") or []) if was_line else []
         rows = {}
         fits = o.fittings.value or ()
-        for row, fit in zip(o.fittings.rows, fits, strict=True):
+        for row, fit in zip(o.fittings.kept, fits, strict=True):
             rows[id(fit)] = row.fields
         segs = []
         for i, seg in enumerate(line.segments):
@@ -833,16 +857,16 @@ class DrainApp(widgets.VBox):
 
     def recompute(self) -> None:
         """Read the panels, drain the tank through both outlets and re-render."""
-        try:
+        def run():
             inp = self.read_inputs()
             st = td.study(None, inp)
-            res = td.results_of(st)
-        except (InvalidInput, *KIT_ERRORS) as exc:
-            self.message.value = stale_html(str(exc))
+            return st, td.results_of(st)
+
+        out = self.refusals.attempt(run)
+        if out is None:
             return
         self.recomputes += 1
-        self.message.value = ""
-        self.study, self.results = st, res
+        self.study, self.results = out
         self._render()
 
     # ------------------------------------------------------------------ render
@@ -856,6 +880,7 @@ class DrainApp(widgets.VBox):
                 row["saved"] = row["time"] - row["compare_time"]
             rows.append(row)
         self.times.value = tuple(rows)
+        self._render_status()
         self._render_summary()
         self._render_charts()
         self.findings.show(r.findings, td.caution_topics(st.inputs))
@@ -887,6 +912,51 @@ class DrainApp(widgets.VBox):
             out.append(("DOES NOT REACH THE TARGET",
                         f"stops at {fmt(res.stop_level, 'elevation', sysm)}: {res.stop_reason}"))
         return out
+
+    def _render_status(self) -> None:
+        """The status line: drain time to the target (or to where the outflow stops), the
+        what-if's time, the peak outflow; the worst finding's verdict."""
+        st, sysm = self.study, self.system
+        res = st.result
+        what = "drain time" if res.reached else "outflow stops after"
+        parts = [f"{what} {units.fmt(res.total_time, 'time', sysm)}"
+                 + ("" if res.reached else
+                    f" at {units.fmt(res.stop_level, 'elevation', sysm)} (target not reached)"),
+                 f"peak outflow {units.fmt(res.peak_flow, 'flow', sysm)}",
+                 f"outlet: {st.outlet.name}"]
+        if st.compare:
+            parts.append(f"what-if {st.compare.label}: "
+                         f"{units.fmt(st.compare.result.total_time, 'time', sysm)}")
+        worst = max((Severity(f.severity) for f in self.results.findings),
+                    key=lambda v: v.rank, default=None)
+        self.status.value = status_html(parts, worst.value if worst is not None else None)
+
+    @property
+    def workspace(self):
+        """The workspace view (:class:`kit.panels.workspace.Workspace`): tank, liquid, outlet
+        and what-if in collapsible sections beside the level chart, the status line above
+        it, the times, outflow chart, findings and save row in tabs under it."""
+        if self._workspace is None:
+            from kit.panels.workspace import Section, Workspace
+
+            # the outlet first: it is what a drain study steers
+            sections = [
+                Section("Tank outlet", [self.outlet]),
+                Section("What-if outlet size", [self.whatif_nominal, self.whatif_size,
+                                                self.whatif_note]),
+                Section("Tank and levels", [self.tank]),
+                Section("Liquid", [self.fluid, self.fluid_note], open=False),
+            ]
+            tabs = [("Times to levels", widgets.VBox([self.summary, self.times])),
+                    ("Outflow", self.flow_chart),
+                    ("Findings", widgets.VBox([self.findings, self.extra_cautions])),
+                    ("Save", self.save_row)]
+            ws = Workspace(sections, self.level_chart, self.status, tabs,
+                           header=[widgets.HTML(_STYLE), self.switch, self.message])
+            ws.add_class("hl-drain-app")
+            ws.add_class("hl-workspace-tank-drainage")
+            self._workspace = ws
+        return self._workspace
 
     def _render_summary(self) -> None:
         st = self.study

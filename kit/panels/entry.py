@@ -26,6 +26,8 @@ from pathlib import Path
 import anywidget
 import traitlets
 
+from kit.panels.base import BASE_CSS
+
 __all__ = ["TextEntry"]
 
 _CSS = """
@@ -51,7 +53,7 @@ class TextEntry(anywidget.AnyWidget):
     """
 
     _esm = Path(__file__).with_name("entry.js")
-    _css = _CSS
+    _css = _CSS + BASE_CSS
     value = traitlets.Unicode("").tag(sync=True)
     placeholder = traitlets.Unicode("").tag(sync=True)
     disabled = traitlets.Bool(False).tag(sync=True)

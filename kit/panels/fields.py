@@ -27,7 +27,8 @@ import ipywidgets as widgets
 import traitlets
 
 from kit import units
-from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
+from kit.errors import LiquidStateError, OutOfRangeError
+from kit.panels.base import KIT_ERRORS, Panel, display_message, error_html, error_widget
 from kit.panels.entry import TextEntry
 
 __all__ = ["QuantityField", "text_for"]
@@ -112,6 +113,8 @@ class QuantityField(Panel):
         self.validator = validator
         self.digits = digits
         self.default_unit = default_unit
+        #: The message of a refusal across inputs shown beside the box ('' for none).
+        self.refused = ""
         self.label = widgets.Label(label)
         self.label.add_class("hl-label")
         self.input = TextEntry(value="", layout=widgets.Layout(width=width))
@@ -158,16 +161,45 @@ class QuantityField(Panel):
             if self.validator is not None:
                 self.validator(x)
         except KIT_ERRORS as exc:
-            self.show_error(str(exc))
+            self.show_error(self.explain(exc))
             return
         self.message.value = ""
+        self.refused = ""
         self._set_valid(True, "")
         self._store(x)
         self._render_echo()
 
+    def explain(self, exc) -> str:
+        """A kit error about this field in the display system's units and words: a range
+        or a liquid state in this field's unit (°F for a °F field, % for an efficiency,
+        kPa(g)/psig for a gauge pressure); other messages as the kit wrote them."""
+        if isinstance(exc, (OutOfRangeError, LiquidStateError)):
+            return display_message(exc, self.system, self.kind, self.field, self.gauge,
+                                   self.p_baro)
+        return str(exc)
+
+    def explain_any(self, exc) -> str:
+        """Any kit error about this field (e.g. a scenario writer's refusal of its text),
+        named by this field and in its display units (see
+        :func:`kit.panels.base.display_message`)."""
+        name = getattr(exc, "field", None)
+        name = name if isinstance(name, str) and self.field in name else self.field
+        return display_message(exc, self.system, self.kind, name, self.gauge, self.p_baro)
+
+    def _set_valid(self, ok: bool, message: str) -> None:
+        super()._set_valid(ok, message)
+        self._mark()
+
+    def _mark(self) -> None:
+        if not self.valid or self.refused:
+            self.add_class("hl-field-error")
+        else:
+            self.remove_class("hl-field-error")
+
     # -- showing
     def _show(self, obj) -> None:
         self.message.value = ""
+        self.refused = ""
         if obj is None:
             self._exact = None
             self.input.value = ""
@@ -186,7 +218,7 @@ class QuantityField(Panel):
         self._render_echo()
 
     def _render_echo(self) -> None:
-        if self.value is None:
+        if self.value is None or self.refused:
             self.echo.value = ""
             return
         if self.kind == "pressure":
@@ -212,6 +244,27 @@ class QuantityField(Panel):
             self.input.value = text
         else:
             self._parse()
+
+    def refuse(self, message: str) -> None:
+        """Mark the field as refused by a check across inputs (e.g. a design flow above the
+        maximum): red border (CSS ``hl-field-error``) and ``message`` beside the box; the
+        echo is hidden. The value stays (the field itself reads); :meth:`unrefuse` undoes."""
+        self.refused = str(message)
+        self.message.value = error_html(message)
+        self.echo.value = ""
+        self._mark()
+
+    def unrefuse(self) -> None:
+        """Undo :meth:`refuse` (the field's own parse message, if any, stays)."""
+        if not self.refused:
+            return
+        self.refused = ""
+        if self.valid:
+            self.message.value = ""
+            self._render_echo()
+        else:
+            self.message.value = error_html(self.error)
+        self._mark()
 
     def show_error(self, message: str) -> None:
         """Show ``message`` beside the box (text kept); ``value`` becomes None."""

@@ -21,7 +21,7 @@ import traitlets
 
 from kit import units
 from kit.core import fittings as core_fittings
-from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
+from kit.panels.base import KIT_ERRORS, Panel, display_message, error_html, error_widget
 from kit.panels.fields import QuantityField
 
 __all__ = ["FittingList", "FittingRow", "PARAM_UNIT_KINDS"]
@@ -117,20 +117,38 @@ class FittingRow(widgets.VBox):
         self.message = error_widget()
         self.fields: dict[str, QuantityField] = {}
         self.choices: dict[str, widgets.Dropdown] = {}
+        #: What was typed or chosen for each kind this row has shown: kind -> {name: text}
+        #: (changing the kind and back brings it back).
+        self.typed: dict[str, dict[str, str]] = {}
+        self._shown_kind: str | None = None
         top = widgets.HBox([self.kind, widgets.Label("×"), self.count, self.label, self.k,
                             self.duplicate, self.remove])
         super().__init__([top, self.param_box, self.method, self.message])
         self.add_class("hl-fitting-row")
         self.build_fields(params or {})
 
+    def remember(self) -> None:
+        """Keep what the fields of the kind shown hold (see :attr:`typed`)."""
+        if self._shown_kind is None:
+            return
+        kept = {n: f.text for n, f in self.fields.items()}
+        kept.update({n: dd.value for n, dd in self.choices.items() if dd.value is not None})
+        self.typed[self._shown_kind] = kept
+
     def build_fields(self, params: dict) -> None:
-        """(Re)build the parameter fields for the current kind, filled from ``params`` (SI)."""
+        """(Re)build the parameter fields for the current kind, filled from ``params`` (SI);
+        what was typed for this kind before (see :attr:`typed`) wins over ``params``."""
         kind = self.kind.value
+        self.remember()
+        before = self.typed.get(kind, {})
+        self._shown_kind = kind
         self.fields = {}
         self.choices = {}
         shown = []
         for p in _params(kind):
             value = params.get(p.name, _param_default(p))
+            if getattr(p, "choices", None) and p.name in before:
+                value = before[p.name]
             if getattr(p, "choices", None):
                 dd = widgets.Dropdown(options=[str(c) for c in p.choices],
                                       value=str(value) if value in p.choices else None,
@@ -141,22 +159,38 @@ class FittingRow(widgets.VBox):
                 self.choices[p.name] = dd
                 shown.append(dd)
                 continue
-            self.fields[p.name] = QuantityField(
+            # optional: an empty box is not an error of its own; the row is then incomplete
+            # (left out of the list's value, marked) until it is filled
+            f = QuantityField(
                 _param_kind(p), _param_label(p), value_si=None if value is None else float(value),
-                system=self.system, field=p.name, width="8em")
-            shown.append(self.fields[p.name])
+                system=self.system, field=p.name, width="8em", optional=True)
+            if p.name in before:
+                f.set_text(before[p.name])
+            self.fields[p.name] = f
+            shown.append(f)
         self.param_box.children = tuple(shown)
         self.method.value = f'<span class="hl-method-text">{html.escape(_method_text(kind))}</span>'
+
+    @property
+    def incomplete(self) -> bool:
+        """True while a parameter box is empty or a choice not made (and none is invalid)."""
+        if any(not f.valid for f in self.fields.values()):
+            return False
+        return (any(f.value is None for f in self.fields.values())
+                or any(dd.value is None for dd in self.choices.values()))
 
     def read(self):
         """The row's :class:`~kit.core.fittings.Fitting`; a kit error for bad input."""
         for f in self.fields.values():
-            if not f.valid or f.value is None:
-                raise _RowInvalid(f.error or f"'{f.field}' is required")
+            if not f.valid:
+                raise _RowInvalid(f.error)
+        for f in self.fields.values():
+            if f.value is None:
+                raise _RowIncomplete(f"'{f.field}' is empty")
         params = {name: f.value for name, f in self.fields.items()}
         for name, dd in self.choices.items():
             if dd.value is None:
-                raise _RowInvalid(f"'{name}' must be chosen")
+                raise _RowIncomplete(f"'{name}' is not chosen")
             params[name] = dd.value
         return core_fittings.Fitting(self.kind.value, int(self.count.value), params,
                                      self.label.value)
@@ -176,6 +210,10 @@ class FittingRow(widgets.VBox):
 
 class _RowInvalid(Exception):
     """Internal: a parameter field shows its own error."""
+
+
+class _RowIncomplete(Exception):
+    """Internal: a row not filled in yet (left out, marked; not an error)."""
 
 
 class FittingList(Panel):
@@ -220,6 +258,8 @@ class FittingList(Panel):
         self.total = widgets.HTML("")
         self.total.add_class("hl-k-total")
         self.message = error_widget()
+        #: The rows read into ``value``, in order (incomplete rows are left out).
+        self.kept: list[FittingRow] = []
         super().__init__([self.heading, self.rows_box, self.add, self.total, self.message],
                          system=system)
         self.add.on_click(self._on_add)
@@ -250,8 +290,8 @@ class FittingList(Panel):
         self.rows_box.children = tuple(self.rows)
 
     def _on_add(self, _button=None) -> None:
-        # the new row's required fields start empty: the list is invalid until they are filled
-        # (a guessed K would enter the calculation unseen)
+        # the new row's required fields start empty (a guessed K would enter the calculation
+        # unseen): the row is marked incomplete and left out until they are filled
         first = next(iter(core_fittings.FITTING_KINDS))
         self._set_rows([*self.rows, self._make_row(first)])
         self._recompute()
@@ -287,24 +327,38 @@ class FittingList(Panel):
     def _recompute(self) -> None:
         self.message.value = ""
         out, first_error = [], None
+        self.kept = []
         for row in self.rows:
             row.message.value = ""
+            row.remove_class("hl-row-incomplete")
+            row.remove_class("hl-field-error")
             with self._quiet():
-                # re-read each box: a message the core put there clears, a parse error stays
+                # a refusal the core made at a box clears; a parse error stays
                 for f in row.fields.values():
-                    f.clear_error()
+                    f.unrefuse()
             try:
                 out.append(row.read())
+                self.kept.append(row)
+            except _RowIncomplete as exc:
+                row.add_class("hl-row-incomplete")
+                row.message.value = (f'<span class="hl-note">incomplete ({html.escape(str(exc))}'
+                                     "): left out until it is filled</span>")
             except _RowInvalid as exc:
+                row.add_class("hl-field-error")
                 first_error = first_error or str(exc)
             except KIT_ERRORS as exc:
-                target = row.fields.get(getattr(exc, "field", ""))
+                # refused at the box it names (e.g. K = -1 on a given-K row), else on the row
+                name = str(getattr(exc, "field", ""))
+                target = row.fields.get(name) or next(
+                    (f for n, f in row.fields.items() if name.startswith(n + " ")), None)
+                text = display_message(exc, self.system, target.kind if target else None)
+                row.add_class("hl-field-error")
                 with self._quiet():
                     if target is not None:
-                        target.show_error(str(exc))
+                        target.refuse(text)
                     else:
-                        row.message.value = error_html(str(exc))
-                first_error = first_error or str(exc)
+                        row.message.value = error_html(text)
+                first_error = first_error or text
         if first_error is not None:
             self._set_valid(False, first_error)
             self._store(None)
@@ -323,6 +377,7 @@ class FittingList(Panel):
                 raise TypeError(f"FittingList shows Fitting rows, not {type(f).__name__}")
         self._set_rows([self._make_row(f.kind, f.count, dict(f.params), f.label or "")
                         for f in fittings])
+        self.kept = list(self.rows)
 
     @traitlets.validate("value")
     def _coerce(self, proposal):
@@ -346,13 +401,14 @@ class FittingList(Panel):
     def _render_k(self) -> None:
         ready = None not in (self.Re, self.D, self.roughness)
         fits = self.value
-        for i, row in enumerate(self.rows):
-            if not ready or fits is None:
+        of_row = dict(zip((id(r) for r in self.kept), fits or (), strict=False))
+        for row in self.rows:
+            if not ready or fits is None or id(row) not in of_row:
                 row.k.value = '<span class="hl-k-text">K = —</span>'
                 continue
             try:
                 K = float(np.asarray(core_fittings.fitting_K(
-                    fits[i], np.array([self.Re]), self.D, self.roughness))[0])
+                    of_row[id(row)], np.array([self.Re]), self.D, self.roughness))[0])
             except KIT_ERRORS as exc:
                 row.k.value = '<span class="hl-k-text">K = —</span>'
                 row.message.value = error_html(str(exc))

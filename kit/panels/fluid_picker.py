@@ -27,7 +27,7 @@ import ipywidgets as widgets
 from kit import units
 from kit.core import liquids
 from kit.core.liquids import FAMILIES, LIQUIDS, P_ATM, Liquid, LiquidState, UserLiquid
-from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
+from kit.panels.base import KIT_ERRORS, Panel, display_message, error_html, error_widget
 from kit.panels.fields import QuantityField
 
 __all__ = ["FluidPicker", "FluidSelection"]
@@ -235,10 +235,13 @@ class FluidPicker(Panel):
         target = self.fields.get(name)
         with self._quiet():
             if target is not None:
-                target.show_error(str(exc))
+                # in the field's display unit: °F for a °F field, not K
+                message = target.explain_any(exc)
+                target.show_error(message)
             else:
-                self.message.value = error_html(str(exc))
-        self._set_valid(False, str(exc))
+                message = display_message(exc, self.system)
+                self.message.value = error_html(message)
+        self._set_valid(False, message)
 
     # -- FluidSelection -> widgets
     def _store_selection(self, liquid, T, P) -> None:

@@ -65,13 +65,14 @@ from kit.core.sizing import Route
 from kit.inputs import line_sizing as ls_inputs
 from kit.panels.base import (
     KIT_ERRORS,
-    InvalidInput,
+    Refusal,
+    Refusals,
     check_system,
     error_html,
     field_value,
     panel_value,
     section_heading,
-    stale_html,
+    shown_value,
 )
 from kit.panels.charts import Chart, Series, axis_title, to_display, trace_style
 from kit.panels.display import DisplaySwitch
@@ -79,6 +80,7 @@ from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
 from kit.panels.fitting_list import FittingList
 from kit.panels.fluid_picker import FluidPicker
+from kit.panels.pipe_picker import fill_materials
 from kit.panels.scenario_text import (
     SaveRow,
     default_save_path,
@@ -89,6 +91,7 @@ from kit.panels.scenario_text import (
     same_value,
 )
 from kit.panels.tables import Column, ResultsTable
+from kit.panels.workspace import status_html
 from kit.studies import line_sizing as ls
 
 __all__ = ["LineSizingApp", "BoreChart", "CANDIDATE_COLUMNS", "BATCH_COLUMNS", "CRITERIA_NOTE"]
@@ -361,6 +364,7 @@ class LineSizingApp(widgets.VBox):
         for w in (self.standard, self.schedule, self.material):
             w.layout.width = "30em"
         self._fill_schedules(inp.schedule)
+        fill_materials(self.material, inp.standard, inp.material, show_given=True)
         # -- route
         r = inp.route
         self.length = qf("length", "developed length", r.length, "hl-route-length")
@@ -380,8 +384,6 @@ class LineSizingApp(widgets.VBox):
         self.fittings = FittingList(r.fittings, system=system,
                                     title="Fittings along the route (lumped in the first leg)")
         # -- results
-        self.message = widgets.HTML("")
-        self.message.add_class("hl-app-message")
         self.table = ResultsTable(CANDIDATE_COLUMNS, system=system, p_baro=inp.p_baro)
         self.table.add_class("hl-candidates")
         self.reason = widgets.HTML("")
@@ -408,6 +410,17 @@ class LineSizingApp(widgets.VBox):
         self.batch_message = widgets.HTML("")
         self.batch_table = ResultsTable(BATCH_COLUMNS, system=system)
         self.batch_table.add_class("hl-batch-table")
+        #: The workspace's one-line status: the verdict, velocity and Δp per length of the
+        #: size shown (CSS ``hl-workspace-status``, ``hl-ls-status``).
+        self.status = widgets.HTML("")
+        self.status.add_class("hl-ls-status")
+        self._workspace = None
+        self.refusals = Refusals(
+            (self.table, self.reason, self.bore_chart, self.size, self.profile_chart,
+             self.size_heading, self.findings, self.status), self._locate, lambda: self.system)
+        #: The banner over the results (CSS ``hl-stale-banner``, ``hl-app-message``).
+        self.message = self.refusals.banner
+        self._last_edited = None
         self.switch = DisplaySwitch([], system=system)
         self.save_row = SaveRow(self.to_scenario, default_save_path(
             self.source_scenario if self.source_scenario is not None else None))
@@ -456,8 +469,9 @@ class LineSizingApp(widgets.VBox):
         self.candidates_view = widgets.VBox([style, section_heading("Candidate sizes"), self.message,
                                              self.table, self.reason])
         self.candidates_view.add_class("hl-line-sizing")
-        self.charts_view = widgets.VBox([self.bore_chart])
-        self.profile_view = widgets.VBox([section_heading("Profile of one size"), self.size,
+        self.charts_view = widgets.VBox([self.message, self.bore_chart])
+        self.profile_view = widgets.VBox([section_heading("Profile of one size"), self.message,
+                                          self.size,
                                           self.profile_chart, self.size_heading, self.findings])
         self.profile_view.add_class("hl-line-sizing")
         self.batch_view = widgets.VBox([
@@ -523,8 +537,26 @@ class LineSizingApp(widgets.VBox):
         self.recompute()
 
     def _on_change(self, change=None) -> None:
+        if change is not None and isinstance(change, dict):
+            self._last_edited = change.get("owner")
         if not self._hold:
             self.recompute()
+
+    def _locate(self, exc):
+        """The input a kit error is about (by the field it names), or None."""
+        name = str(getattr(exc, "field", "") or getattr(exc, "key", ""))
+        for f in (self.flow_design, self.flow_min, self.flow_max, self.v_min, self.v_max,
+                  self.dp_max, self.length, self.start_elevation, self.end_pressure,
+                  self.vapour_margin):
+            if name and name in (f.field, f.label.value):
+                return f
+        for row in self.points:
+            for f in (row.chainage, row.elevation):
+                if name and name == f.field:
+                    return f
+        if name.startswith("chainage") or name.startswith("point"):
+            return self.points_box
+        return None
 
     def _on_length(self, change) -> None:
         if change["new"] is not None:
@@ -539,6 +571,7 @@ class LineSizingApp(widgets.VBox):
         self._hold += 1
         try:
             self._fill_schedules(self.schedule.value)
+            fill_materials(self.material, self.standard.value, self.material.value)
         finally:
             self._hold -= 1
         self._on_change()
@@ -577,6 +610,7 @@ class LineSizingApp(widgets.VBox):
         sel = panel_value(self.fluid, "the liquid state is not valid")
         fits = panel_value(self.fittings, "a fitting row is not valid")
         Qd, Qmin, Qmax = field_value(self.flow_design), field_value(self.flow_min), field_value(self.flow_max)
+        self._check_flows(Qd, Qmin, Qmax)
         base = DUTY_CLASSES[self.duty.value]
         v_min, v_max, dp_max = field_value(self.v_min), field_value(self.v_max), field_value(self.dp_max)
         given = self._scenario_duty
@@ -600,6 +634,28 @@ class LineSizingApp(widgets.VBox):
                                self.standard.value, self.schedule.value, self.material.value,
                                self.condition.value, pipes, field_value(self.end_pressure),
                                self.p_baro, field_value(self.vapour_margin), self.erosional_C)
+
+    def _check_flows(self, Qd: float, Qmin: float, Qmax: float) -> None:
+        """Minimum ≤ design ≤ maximum, refused at the field the engineer edited last (the
+        design flow unless the minimum or the maximum was the last edit)."""
+        sysm = self.system
+
+        def q(x):
+            return shown_value(x, "flow", sysm)
+
+        last = self._last_edited
+        if Qd > Qmax:
+            if last is self.flow_max:
+                raise Refusal(self.flow_max, f"'maximum flow' must be at least the design "
+                              f"flow {q(Qd)}, not {q(Qmax)}")
+            raise Refusal(self.flow_design, f"'design flow' must be at most the maximum flow "
+                          f"{q(Qmax)}, not {q(Qd)}")
+        if Qmin > Qd:
+            if last is self.flow_min:
+                raise Refusal(self.flow_min, f"'minimum flow' must be at most the design "
+                              f"flow {q(Qd)}, not {q(Qmin)}")
+            raise Refusal(self.flow_design, f"'design flow' must be at least the minimum "
+                          f"flow {q(Qmin)}, not {q(Qd)}")
 
     def to_scenario(self):
         """A copy of the scenario the app was filled from, with every input the panels hold
@@ -691,7 +747,7 @@ class LineSizingApp(widgets.VBox):
     # ------------------------------------------------------------------ compute and render
     def recompute(self) -> None:
         """Read the panels, size the line (cached per input) and re-render the results."""
-        try:
+        def run():
             inp = self.read_inputs()
             key = self._key(inp)
             res = self._cache.get(key)
@@ -701,10 +757,12 @@ class LineSizingApp(widgets.VBox):
                 if len(self._cache) > 64:
                     self._cache.clear()
                 self._cache[key] = res
-        except (InvalidInput, *KIT_ERRORS) as exc:
-            self.message.value = stale_html(str(exc))
+            return inp, res
+
+        out = self.refusals.attempt(run)
+        if out is None:
             return
-        self.message.value = ""
+        inp, res = out
         self.study = ls.SizingStudy(inp, res)
         self.findings.topics = ls.caution_topics(inp)
         self._render()
@@ -817,6 +875,7 @@ class LineSizingApp(widgets.VBox):
         if i is None:
             return
         self.shown = i
+        self._render_status()
         shown = (st.result, i, self.system)
         last = self._shown_key
         if last is not None and last[0] is shown[0] and last[1:] == shown[1:]:
@@ -862,6 +921,53 @@ class LineSizingApp(widgets.VBox):
             "pressure head; where the HGL meets the vapour-pressure line the liquid boils.")
         self.findings.value = c.findings
         self.fittings.set_conditions(c.Re, c.pipe.Di, c.pipe.roughness)
+
+    def _render_status(self) -> None:
+        """The status line: verdict, velocity and Δp per length of the size shown."""
+        st, i = self.study, self.shown
+        if st is None or i is None:
+            return
+        c = st.result.candidates[i]
+        sysm = self.system
+        rec = " (recommended)" if i == st.result.recommended else ""
+        parts = [f"{c.pipe.label.split(' (')[0].split(',')[0]}{rec}",
+                 f"velocity {units.fmt(c.velocity, 'velocity', sysm)}",
+                 f"Δp {units.fmt(c.dp_per_m, 'pressure_per_length', sysm)}",
+                 f"at {units.fmt(st.inputs.Q_design, 'flow', sysm)}"]
+        self.status.value = status_html(parts, c.verdict)
+
+    # ------------------------------------------------------------------ workspace
+    @property
+    def workspace(self):
+        """The workspace view (:class:`kit.panels.workspace.Workspace`): the inputs in
+        collapsible sections beside the velocity/pressure-drop chart, the status line above
+        it, the candidates, profile, line list and save row in tabs under it. Built once."""
+        if self._workspace is None:
+            from kit.panels.workspace import Section, Workspace
+
+            sections = [
+                Section("Flow and duty", [self.flow_design, self.flow_min, self.flow_max,
+                                          self.duty, self.v_min, self.v_max, self.dp_max,
+                                          self.criteria_note]),
+                Section("Liquid", [self.fluid]),
+                Section("Pipe and route", [self.standard, self.schedule, self.material,
+                                           self.condition, self.length, self.start_elevation,
+                                           self.start_name, self.points_box, self.add_point,
+                                           self.end_pressure, self.vapour_margin]),
+                Section("Fittings", [self.fittings], open=False),
+            ]
+            tabs = [("Candidates", widgets.VBox([self.table, self.reason])),
+                    ("Profile and findings", widgets.VBox([self.size, self.profile_chart,
+                                                           self.size_heading, self.findings])),
+                    ("Line list", widgets.VBox([self.batch_text, self.batch_run,
+                                                self.batch_message, self.batch_table])),
+                    ("Save", self.save_row)]
+            ws = Workspace(sections, self.bore_chart, self.status, tabs,
+                           header=[widgets.HTML(_STYLE), self.switch, self.message])
+            ws.add_class("hl-line-sizing")
+            ws.add_class("hl-workspace-line-sizing")
+            self._workspace = ws
+        return self._workspace
 
     # ------------------------------------------------------------------ batch
     def size_list(self) -> None:

@@ -34,7 +34,8 @@ from kit.errors import check_range
 from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
 from kit.panels.fields import QuantityField
 
-__all__ = ["PipePicker", "nominal_label", "schedule_label"]
+__all__ = ["STANDARD_MATERIALS", "materials_for", "fill_materials", "PipePicker", "nominal_label",
+           "schedule_label"]
 
 _MODES = [("Catalogue pipe", "catalogue"), ("Custom bore", "custom")]
 
@@ -149,6 +150,7 @@ class PipePicker(Panel):
         with self._quiet():
             self._fill_nominal("4")
             self._fill_schedule("40")
+            self._fill_materials()
             self._show_mode()
         self._wire()
         if pipe is None:
@@ -168,6 +170,8 @@ class PipePicker(Panel):
 
     def _on_mode(self, change) -> None:
         self._show_mode()
+        with self._quiet():
+            self._fill_materials()
         self._on_change(change)
 
     def _on_standard(self, change) -> None:
@@ -176,7 +180,12 @@ class PipePicker(Panel):
         with self._quiet():
             self._fill_nominal(self.nominal.value)
             self._fill_schedule(self.schedule.value)
+            self._fill_materials()
         self._recompute()
+
+    def _fill_materials(self, show_given: bool = False) -> None:
+        std = self.standard.value if self.mode.value == "catalogue" else None
+        fill_materials(self.material, std, self.material.value, show_given)
 
     def _on_nominal(self, change) -> None:
         if self._busy:
@@ -253,7 +262,6 @@ class PipePicker(Panel):
         if not isinstance(pipe, Pipe):
             raise TypeError(f"PipePicker shows a kit.core.pipes.Pipe, not {type(pipe).__name__}")
         self.message.value = ""
-        self.material.value = pipe.material
         self.condition.value = pipe.condition
         if pipe.standard is not None:
             self.mode.value = "catalogue"
@@ -264,6 +272,8 @@ class PipePicker(Panel):
             self.mode.value = "custom"
             self.bore.value = pipe.Di
             self.roughness_override.value = pipe.roughness_override
+        std = pipe.standard if pipe.standard is not None else None
+        fill_materials(self.material, std, pipe.material, show_given=True)
         self._show_mode()
 
     def _after_show(self) -> None:
@@ -297,6 +307,47 @@ class PipePicker(Panel):
         body = "".join(f"<tr><td>{a}</td><td>{b}</td><td class='hl-source'>{c}</td></tr>"
                        for a, b, c in rows)
         self.info.value = f'<table class="hl-pipe-table">{body}</table>'
+
+
+#: The materials a catalogue pipe of each standard is made in (common practice, no source):
+#: the material dropdown follows the standard (no PVC standard with a stainless material). A
+#: standard not listed here offers every material of the roughness table.
+STANDARD_MATERIALS = {
+    "asme_b36_10m": ("carbon_steel", "galvanised_steel", "stainless_steel"),
+    "asme_b36_19m": ("stainless_steel",),
+    "astm_d1785": ("pvc",), "astm_d2241": ("pvc",), "astm_d2241_cts": ("pvc",),
+    "awwa_c900": ("pvc",), "awwa_c905": ("pvc",), "awwa_c905_ips": ("pvc",),
+    "astm_f441": ("pvc",),
+    "astm_f2619": ("hdpe",),
+    "bs_1387": ("carbon_steel", "galvanised_steel"),
+}
+
+
+def materials_for(standard: str | None) -> list[tuple[str, str]]:
+    """``(label, key)`` options of the material dropdown for a pipe standard (None: a custom
+    bore, every material).
+
+    >>> [k for _l, k in materials_for("astm_d1785")]
+    ['pvc']
+    """
+    allowed = STANDARD_MATERIALS.get(standard) if standard is not None else None
+    return [(lbl, k) for k, lbl in materials() if allowed is None or k in allowed]
+
+
+def fill_materials(dropdown, standard: str | None, keep: str | None,
+                   show_given: bool = False) -> None:
+    """Offer the materials of ``standard`` in ``dropdown``, keeping ``keep`` if it is one of
+    them (else the first). With ``show_given`` (a pipe shown from a scenario) a material the
+    standard does not list is kept and labelled so, never changed silently."""
+    options = materials_for(standard)
+    keys = [k for _l, k in options]
+    if show_given and keep is not None and keep not in keys:
+        label = dict((k, lbl) for k, lbl in materials()).get(keep, keep)
+        options = [*options, (f"{label} (not usual for this standard)", keep)]
+        keys.append(keep)
+    if tuple(tuple(o) for o in dropdown.options) != tuple(options):
+        dropdown.options = options
+    dropdown.value = keep if keep in keys else keys[0]
 
 
 class _FieldInvalid(Exception):

@@ -121,10 +121,21 @@ function onlyXYChanged(before, after) {
     before.traces.every((t, i) => t === after.traces[i]);
 }
 
-function figureOf(model) {
+// A chart inside an element of class "hl-fit-height" (the workspace's main chart) takes the
+// height its box gives it (CSS), not the figure's own height: the same figure shows at its
+// own height in the narrative cells and fits the screen in the workspace.
+function fitHeight(div) {
+  if (!div.closest(".hl-fit-height")) return null;
+  const h = div.clientHeight;
+  return h > 50 ? h : null;
+}
+
+function figureOf(model, div) {
   const layout = Object.assign({}, model.get("figure_layout") || {});
   const template = model.get("figure_template");
   if (template && Object.keys(template).length) layout.template = template;
+  const h = div ? fitHeight(div) : null;
+  if (h !== null) layout.height = h;
   return { data: model.get("data") || [], layout, config: model.get("plot_config") || {} };
 }
 
@@ -149,7 +160,7 @@ export default {
         if (!div.isConnected || div.clientWidth === 0) return;   // drawn when it gets a size
         Plotly = Plotly || (await plotlyFor(model));
         dirty = false;
-        const fig = figureOf(model);
+        const fig = figureOf(model, div);
         const sig = signature(fig);
         logEvent("draw", id);
         let how;
@@ -186,11 +197,16 @@ export default {
     model.on("change:plot_config", changed);
 
     let width = 0;
+    let height = 0;
     const ro = new ResizeObserver(() => {
       const w = div.clientWidth;
-      if (w === width) return;
+      const h = fitHeight(div) || 0;
+      if (w === width && h === height) return;
+      const grew = h !== height;
       width = w;
+      height = h;
       if (w === 0) return;
+      if (grew && drawn) dirty = true;   // a fitted chart redraws at its new height
       if (!drawn || dirty) {
         schedule(view);
       } else if (Plotly) {

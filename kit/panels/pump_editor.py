@@ -24,8 +24,8 @@ Example
 >>> round(float(ed.value.head(0.02)), 2)
 32.55
 >>> ed.rows[2].head.value = "-4"
->>> ed.value is None, ed.rows[2].head.value, "pump.head[2]" in ed.error
-(True, '-4', True)
+>>> ed.value is None, ed.rows[2].head.value, ed.error
+(True, '-4', "'head, point 3' must be at least 0 m, not -4 m")
 """
 
 from __future__ import annotations
@@ -38,7 +38,7 @@ import numpy as np
 import traitlets
 
 from kit import units
-from kit.errors import InputError
+from kit.errors import InputError, ScenarioError
 from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
 from kit.panels.charts import to_display
 from kit.panels.fields import QuantityField
@@ -201,6 +201,9 @@ class PumpEditor(Panel):
     doc = traitlets.Any(None, allow_none=True)
 
     def __init__(self, doc: dict | None = None, system: str = "SI", title: str = "Pump curve"):
+        #: Rows (0-based) read into the curve, and rows left out as incomplete.
+        self.kept: list[int] = []
+        self.incomplete: list[int] = []
         import plotly.graph_objects as go
 
         self.heading = widgets.HTML(f"<b>{html.escape(title)}</b>" if title else "")
@@ -379,34 +382,105 @@ class PumpEditor(Panel):
         if self.arrangement.value != "single":
             doc["arrangement"] = self.arrangement.value
             doc["count"] = int(self.count.value)
-        texts = [r.texts for r in self.rows]
+        texts = [[c.strip() for c in r.texts] for r in self.rows]
+        # a point without flow or head (a row just added, or half typed) is incomplete:
+        # marked and left out, so the curve fits the complete points meanwhile
+        self.kept = [i for i, t in enumerate(texts) if t[0] and t[1]]
+        self.incomplete = [i for i in range(len(texts)) if i not in self.kept]
         unit_of = {"flow": fu, "head": hu, "efficiency": "%", "npshr": hu}
         for j, (key, header, required) in enumerate(COLUMNS):
-            col = [t[j].strip() for t in texts]
+            col = [texts[i][j] for i in self.kept]
             filled = [c != "" for c in col]
             if not required and not any(filled):
                 continue
             if not all(filled):
-                i = filled.index(False)
-                raise InputError(f"{header}, point {i + 1}", "", "is empty; fill every point of "
-                                 "this column" + ("" if required else " or none"))
+                row = self.kept[filled.index(False)]
+                self._mark_row(row)
+                raise InputError(f"{header}, point {row + 1}", "", "is empty; fill every point "
+                                 "of this column" + ("" if required else " or none"))
             doc[key] = [_with_unit(c, unit_of[key]) for c in col]
         return doc
+
+    def _mark_row(self, i: int) -> None:
+        """Mark row ``i`` (0-based) as refused (CSS ``hl-field-error``)."""
+        if 0 <= i < len(self.rows):
+            self.rows[i].add_class("hl-field-error")
+
+    def _mark_rows(self) -> None:
+        """Clear the refused marks; mark the incomplete rows (CSS ``hl-row-incomplete``)."""
+        for i, r in enumerate(self.rows):
+            r.remove_class("hl-field-error")
+            if i in self.incomplete:
+                r.add_class("hl-row-incomplete")
+            else:
+                r.remove_class("hl-row-incomplete")
+
+    def _explain(self, exc) -> str:
+        """The kit's message with the point numbered as the table shows it (1-based, among
+        every row), the column named as its header, and values in the table's units (an
+        efficiency in %); the point's row is marked."""
+        key = str(getattr(exc, "key", "") or "")
+        text = exc.reason if isinstance(exc, ScenarioError) else str(exc)
+        m = re.fullmatch(r"pump\.(\w+)\[(\d+)\]", key)
+        if not m or m.group(1) not in dict((k, h) for k, h, _r in COLUMNS):
+            return text if key.startswith("pump") else str(exc)
+        col, i = m.group(1), int(m.group(2))
+        row = self.kept[i] if i < len(self.kept) else i
+        self._mark_row(row)
+        label = f"{dict((k, h) for k, h, _r in COLUMNS)[col]}, point {row + 1}"
+        text = text.replace(f"'{key}'", f"'{label}'")
+        text = re.sub(r"^'(?:[^']|'[^']*')*? point \d+'", lambda _m: f"'{label}'", text)
+        num = r"(-?\d+(?:\.\d+)?(?:e[+-]?\d+)?)"
+        if col == "efficiency":
+            return re.sub(num + r" -(?=[,;\s]|$)",
+                          lambda q: f"{_number_text(100.0 * float(q.group(1)))} %", text)
+        kind, unit = (("flow", self.flow_unit.value) if col == "flow" else
+                      ("head", self.head_unit.value))
+        si = "m³/s" if kind == "flow" else "m"
+        pretty = dict(FLOW_UNITS + HEAD_UNITS)
+        shown = next((lbl for lbl, u in pretty.items() if u == unit), unit)
+        return re.sub(num + " " + re.escape(si) + r"(?![\w³²/])",
+                      lambda q: f"{_number_text(_convert(float(q.group(1)), kind, unit))} "
+                                f"{shown}", text)
 
     def _rebuild(self) -> None:
         from kit.inputs.pump_selection import build_pump
 
+        self.incomplete = []
         try:
+            doc = None
+            self._mark_rows()
             doc = self._read_doc()
+            self._mark_rows()
             pump = build_pump(doc, "pump")
         except KIT_ERRORS as exc:
-            self._fail(str(exc))
+            self._fail(self._explain(exc) + self._left_out())
             return
-        self.message.value = ""
+        self.message.value = (f'<span class="hl-note">{html.escape(self._left_out()[2:])}'
+                              "</span>" if self.incomplete else "")
         self._set_valid(True, "")
         self.doc = doc
         self._store(pump)
         self._draw()
+
+    def refuse(self, message: str) -> None:
+        """Mark the editor as refused by a check outside it (its message line, red)."""
+        self.message.value = error_html(message)
+        self.add_class("hl-field-error-box")
+
+    def unrefuse(self) -> None:
+        """Undo :meth:`refuse`."""
+        if "hl-field-error-box" in self._dom_classes:
+            self.remove_class("hl-field-error-box")
+            self.message.value = error_html(self.error) if not self.valid else ""
+
+    def _left_out(self) -> str:
+        """'; point 6 is incomplete (no flow or head): left out' ('' for none)."""
+        if not self.incomplete:
+            return ""
+        n = [str(i + 1) for i in self.incomplete]
+        return (f"; point{'s' if len(n) > 1 else ''} {', '.join(n)} "
+                f"{'are' if len(n) > 1 else 'is'} incomplete (no flow or head): left out")
 
     def _fail(self, message: str) -> None:
         self.message.value = error_html(message)

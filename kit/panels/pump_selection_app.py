@@ -1,10 +1,14 @@
 """The pump-selection notebook's composite: inputs, chart, comparison tables, findings.
 
 :class:`PumpSelectionApp` holds a working copy of the scenario. Its inputs — the liquid
-temperature range and a :class:`~kit.panels.pump_editor.PumpEditor` for one candidate at a
-time — write back into that copy (strings with units, as a scenario file holds them), and every
-change re-runs :func:`kit.studies.pump_selection.study` and redraws. Nothing here computes
-hydraulics: the study does.
+temperature range, a :class:`~kit.panels.pump_editor.PumpEditor` for one candidate at a
+time, and the pumped system (:class:`~kit.panels.pump_system.PumpSystemInputs`: required
+flow, source and destination levels and pressures, suction and discharge lines with their
+pipes, lengths, rises and fittings, running hours, tariff and currency) — write back into that
+copy (strings with units, as a scenario file holds them), and every change re-runs
+:func:`kit.studies.pump_selection.study` and redraws. Nothing here computes hydraulics: the
+study does. A refused input is marked at its field and the results are marked stale
+(:class:`kit.panels.base.Refusals`); ``workspace`` is the one-screen view.
 
 Sections (each a widget the notebook shows in its own cell):
 
@@ -39,15 +43,17 @@ from kit.core.findings import Severity
 from kit.core.operating import BEP_REGIONS
 from kit.errors import InputError
 from kit.inputs import pump_selection as pump_inputs
-from kit.panels.base import KIT_ERRORS, check_system, error_html, error_widget
+from kit.panels.base import KIT_ERRORS, InvalidInput, Refusal, Refusals, check_system
 from kit.panels.charts import to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
 from kit.panels.plot_view import PlotView
 from kit.panels.pump_editor import PumpEditor
+from kit.panels.pump_system import PumpSystemInputs, with_values
 from kit.panels.scenario_text import SaveRow, default_save_path
 from kit.panels.tables import Column, results_table_html, unit_label
+from kit.panels.workspace import status_html
 from kit.studies import pump_selection as ps
 
 __all__ = ["PumpSelectionApp", "CANDIDATE_ROWS", "candidates_html", "POINT_COLUMNS", "CONTROL_COLUMNS",
@@ -207,9 +213,9 @@ class PumpSelectionApp(widgets.VBox):
         t_lo = liq.get("temperature_min", liq.get("temperature", ""))
         t_hi = liq.get("temperature_max", liq.get("temperature", ""))
         self.t_min = QuantityField("temperature", "Liquid temperature, lowest", text=t_lo,
-                                   system=self.display, field="liquid.temperature_min")
+                                   system=self.display, field="lowest liquid temperature")
         self.t_max = QuantityField("temperature", "Liquid temperature, highest", text=t_hi,
-                                   system=self.display, field="liquid.temperature_max")
+                                   system=self.display, field="highest liquid temperature")
         self.t_min.add_class("hl-temp-min")
         self.t_max.add_class("hl-temp-max")
         self.choice = widgets.Dropdown(options=[(p.name, i) for i, p in enumerate(self.pumps)],
@@ -217,8 +223,10 @@ class PumpSelectionApp(widgets.VBox):
                                        layout=widgets.Layout(width="36em"))
         self.choice.add_class("hl-pump-choice")
         self.editor = PumpEditor(self.scenario.doc["pumps"][0], system=self.display, title="")
-        self.message = error_widget()
         self.style = widgets.HTML(_STYLE)
+        #: The system's inputs: duty flow, ends, lines, running hours and tariff.
+        self.system_inputs = PumpSystemInputs(self.scenario, self.display,
+                                              p_baro=self.study.system.p_baro)
 
         # The figure is a plain plotly Figure (the model the code edits), shown by a
         # PlotView: its JSON goes to the browser after each edit (see kit.panels.plot_view).
@@ -226,8 +234,11 @@ class PumpSelectionApp(widgets.VBox):
             rows=2, cols=1, shared_xaxes=True, row_heights=[0.64, 0.36], vertical_spacing=0.07,
             subplot_titles=("pump curves on the system band", "NPSH available and required"))
         fig.update_layout(height=860, template="plotly_white",
-                          margin=dict(l=70, r=20, t=50, b=40),
-                          legend=dict(orientation="h", x=0.0, y=-0.09, yanchor="top"),
+                          margin=dict(l=70, r=20, t=50, b=150),
+                          # the legend in the bottom margin (container coordinates): it
+                          # never covers the flow axis title, whatever the chart's height
+                          legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
+                                      yref="container"),
                           hovermode="closest")
         self.figure = fig
         self.plot = PlotView()
@@ -240,16 +251,28 @@ class PumpSelectionApp(widgets.VBox):
         self.control_table = widgets.HTML("")
         self.control_table.add_class("hl-control")
         self.findings = FindingsView(topics=CAUTION_TOPICS, system=self.display)
+        #: The workspace's one-line status: the recommended pump's verdict, operating flow,
+        #: flow against the BEP flow and least NPSH margin (CSS ``hl-ps-status``).
+        self.status = widgets.HTML("")
+        self.status.add_class("hl-ps-status")
+        self._workspace = None
+        self.refusals = Refusals((self.plot, self.candidates, self.points_table,
+                                  self.control_table, self.findings, self.status),
+                                 system=lambda: self.display)
+        #: The banner over the results: what is refused and that the results are stale
+        #: (CSS ``hl-stale-banner``, ``hl-app-message``).
+        self.message = self.refusals.banner
 
         self.inputs = widgets.VBox([
             self.style,
             widgets.HTML("<b>Liquid</b>"), self.t_min, self.t_max,
-            widgets.HTML("<b>Candidate pumps</b>"), self.choice, self.editor, self.message])
+            widgets.HTML("<b>Candidate pumps</b>"), self.choice, self.editor, self.message,
+            widgets.HTML("<b>The pumped system</b>"), self.system_inputs.view])
         self.inputs.add_class("hl-pump-inputs")
-        self.chart = widgets.VBox([self.plot])
+        self.chart = widgets.VBox([self.message, self.plot])
         self.chart.add_class("hl-pump-chart")
         self.comparison = widgets.VBox([
-            self.style, widgets.HTML("<b>Candidates over the band</b>"), self.candidates,
+            self.style, self.message, widgets.HTML("<b>Candidates over the band</b>"), self.candidates,
             widgets.HTML("<b>Every operating point</b>"), self.points_table])
         self.control_view = widgets.VBox([self.style, self.control_table])
         self.switch = DisplaySwitch([], system=self.display)
@@ -272,38 +295,69 @@ class PumpSelectionApp(widgets.VBox):
         self.t_max.observe(self._on_temperature, names="value")
         self.editor.observe(self._on_pump, names="value")
         self.choice.observe(self._on_choice, names="value")
+        self.system_inputs.observe(self._on_system)
 
     def _on_temperature(self, change) -> None:
         if self._busy:
             return
-        if self.t_min.value is None or self.t_max.value is None:
-            self._refuse("liquid temperature", "is not a temperature yet")
-            return
-        try:
-            scenario = pump_inputs.with_temperatures(self.scenario, self.t_min.text,
-                                                     self.t_max.text)
-        except KIT_ERRORS as exc:
-            self._refuse_error(exc)
-            return
-        self.scenario = scenario
-        self.recompute()
+        edited = change["owner"] if change.get("owner") in (self.t_min, self.t_max) \
+            else self.t_max
+
+        def apply():
+            for f in (self.t_min, self.t_max):
+                if f.value is None:
+                    raise InvalidInput(f.error or f"'{f.field}' is not a temperature yet")
+            try:   # a refusal of the writer or of the study is the edited field's
+                scenario = pump_inputs.with_temperatures(self.scenario, self.t_min.text,
+                                                         self.t_max.text)
+                return self._run(scenario, self.pumps)
+            except KIT_ERRORS as exc:
+                raise Refusal(edited, edited.explain_any(exc)) from exc
+
+        self._accept(self.refusals.attempt(apply))
 
     def _on_pump(self, change) -> None:
         if self._busy:
             return
         i = int(self.choice.value)
-        if self.editor.value is None:
-            self._refuse(f"pump '{self.pumps[i].name}'", "has an input refused (see beside the "
-                         "table)")
+
+        def apply():
+            if self.editor.value is None:
+                raise InvalidInput(self.editor.error or "a datasheet point is refused")
+            try:
+                scenario = pump_inputs.with_pump(self.scenario, i, self.editor.doc)
+            except KIT_ERRORS as exc:
+                raise Refusal(self.editor, str(exc)) from exc
+            pumps = list(self.pumps)
+            pumps[i] = self.editor.value
+            return self._run(scenario, pumps)
+
+        self._accept(self.refusals.attempt(apply))
+
+    def _on_system(self, change) -> None:
+        """An input of the pumped system (duty, ends, lines, operation) written back at its
+        key; a refusal is shown at the field (a text box) or in the banner."""
+        if self._busy:
             return
-        try:
-            scenario = pump_inputs.with_pump(self.scenario, i, self.editor.doc)
-        except KIT_ERRORS as exc:
-            self._refuse_error(exc)
-            return
-        self.scenario = scenario
-        self.pumps[i] = self.editor.value
-        self.recompute()
+        w = change["owner"]
+        inputs = self.system_inputs
+
+        def apply():
+            if isinstance(w, QuantityField) and not w.valid:
+                raise InvalidInput(w.error)
+            try:
+                value = inputs.doc_value(w, self.scenario.doc)
+            except KIT_ERRORS as exc:      # a picker or fitting row shows its own message
+                raise InvalidInput(str(exc)) from exc
+            try:
+                scenario = with_values(self.scenario, {inputs.keys[w]: value})
+                return self._run(scenario, self.pumps)
+            except KIT_ERRORS as exc:
+                if isinstance(w, QuantityField):
+                    raise Refusal(w, w.explain_any(exc)) from exc
+                raise
+
+        self._accept(self.refusals.attempt(apply))
 
     def _on_choice(self, change) -> None:
         self._busy = True
@@ -312,27 +366,23 @@ class PumpSelectionApp(widgets.VBox):
         finally:
             self._busy = False
 
-    def _refuse_error(self, exc) -> None:
-        self.message.value = error_html(f"{exc}; the results shown are for the last accepted "
-                                        "inputs")
-
-    def _refuse(self, what: str, why: str) -> None:
-        self.message.value = error_html(f"{what} {why}; the results shown are for the last "
-                                        "accepted inputs")
-
     # ------------------------------------------------------------------ computing
-    def recompute(self) -> None:
-        """Re-run the study on the working scenario and redraw; kit errors are shown."""
-        try:
-            study = ps.study(self.scenario, pumps=self.pumps)
-            results = ps.results_of(self.scenario, study)
-        except KIT_ERRORS as exc:
-            self.message.value = error_html(f"{exc}; the results shown are for the last "
-                                            "accepted inputs")
+    @staticmethod
+    def _run(scenario, pumps):
+        study = ps.study(scenario, pumps=pumps)
+        return scenario, pumps, study, ps.results_of(scenario, study)
+
+    def _accept(self, out) -> None:
+        """Keep an accepted (scenario, pumps, study, results) and redraw; None: refused."""
+        if out is None:
             return
-        self.message.value = ""
-        self.study, self.results = study, results
+        self.scenario, self.pumps, self.study, self.results = out
         self._render()
+
+    def recompute(self) -> None:
+        """Re-run the study on the working scenario and redraw; a refusal is shown in the
+        banner over the results, which are marked stale."""
+        self._accept(self.refusals.attempt(lambda: self._run(self.scenario, self.pumps)))
 
     # ------------------------------------------------------------------ drawing
     def _build_traces(self, go) -> None:
@@ -379,6 +429,7 @@ class PumpSelectionApp(widgets.VBox):
 
     def _render(self) -> None:
         self._draw()
+        self._render_status()
         self._tables()
         fs = sorted(self.results.findings, key=lambda f: -Severity(f.severity).rank)
         self.findings.show(fs)
@@ -443,11 +494,66 @@ class PumpSelectionApp(widgets.VBox):
             fig.layout.yaxis.title.text = f"head [{unit_label('head', sysm)}]"
             fig.layout.yaxis2.title.text = f"NPSH [{unit_label('head', sysm)}]"
             q_top = max(float(Q[-1]), max(p.q_end for p in s.pumps))
-            fig.layout.xaxis.range = [0, _nice_top(float(fx(q_top)) * 1.02)]
-            fig.layout.xaxis2.range = fig.layout.xaxis.range
+            # one range for both rows, from this system's numbers (inside batch_update a
+            # read of fig.layout.xaxis.range gives the range before the batch: the last
+            # system's, which left the NPSH row's axis on the old unit after a switch)
+            x_range = [0, _nice_top(float(fx(q_top)) * 1.02)]
+            fig.layout.xaxis.range = x_range
+            fig.layout.xaxis2.range = x_range
             fig.layout.yaxis.range = [0, _nice_top(float(fh(1.08 * h_top)))]
             fig.layout.yaxis2.range = [0, _nice_top(float(fh(1.15 * n_top)))]
         self.plot.show(fig)
+
+    def _render_status(self) -> None:
+        """The status line: the recommended pump (or the best-ranked one when none passes)
+        with its operating flow over the band, Q/Q_BEP and least NPSH margin."""
+        s, sysm = self.study, self.display
+        rows = s.candidate_rows()
+        if not rows:
+            self.status.value = "no candidate pump"
+            return
+        row = next((r for r in rows if r["pump"] == s.recommended), None)
+        lead = "recommended " if row is not None else "no candidate passes; "
+        row = row or min(rows, key=lambda r: Severity(r["verdict"]).rank)
+
+        def rng(a, b, kind):
+            if a is None:
+                return "—"
+            lo, hi = row.get(a), row.get(b)
+            if lo is None:
+                return "—"
+            one = units.fmt(lo, kind, sysm) if kind else f"{lo:.2f}"
+            if hi is None or abs(hi - lo) <= 1e-9 * max(abs(hi), 1.0):
+                return one
+            two = units.fmt(hi, kind, sysm) if kind else f"{hi:.2f}"
+            return f"{one.split(' ')[0]}–{two}" if kind else f"{one}–{two}"
+
+        parts = [f"{lead}{row['pump']}", f"flow {rng('Q_min', 'Q_max', 'flow')}",
+                 f"Q/Q_BEP {rng('bep_min', 'bep_max', None)}",
+                 "NPSH margin " + (units.fmt(row["npsh_margin"], "head", sysm)
+                                   if row.get("npsh_margin") is not None else "—")]
+        self.status.value = status_html(parts, row["verdict"])
+
+    @property
+    def workspace(self):
+        """The workspace view (:class:`kit.panels.workspace.Workspace`): the liquid and the
+        pump datasheets in collapsible sections beside the pump chart, the status line above
+        it, the tables, control comparison, findings and save row in tabs under it."""
+        if self._workspace is None:
+            from kit.panels.workspace import Section, Workspace
+
+            sys_in = self.system_inputs.sections
+            sections = [sys_in[0], Section("Liquid", [self.t_min, self.t_max]),
+                        Section("Pump datasheets", [self.choice, self.editor]), *sys_in[1:]]
+            tabs = [("Candidates", self.candidates), ("Operating points", self.points_table),
+                    ("Throttling or speed", self.control_table), ("Findings", self.findings),
+                    ("Save", self.save_row)]
+            ws = Workspace(sections, self.plot, self.status, tabs,
+                           header=[self.style, self.switch, self.message])
+            ws.add_class("hl-pump-app")
+            ws.add_class("hl-workspace-pump-selection")
+            self._workspace = ws
+        return self._workspace
 
     def _hover(self, name: str, p) -> str:
         sysm = self.display
@@ -516,8 +622,8 @@ class PumpSelectionApp(widgets.VBox):
         every pump's datasheet points as accepted from the panels (strings with units, as
         typed). Raises the kit's error while a temperature or the pump being edited is
         invalid (the working copy then still holds the last accepted values)."""
-        for f in (self.t_min, self.t_max):
-            if not f.valid or f.value is None:
+        for f in (self.t_min, self.t_max, *self.system_inputs.fields):
+            if not f.valid or (f.value is None and not f.optional):
                 raise InputError(f.field, f.text, f"cannot be saved: {f.error or 'not valid'}")
         if self.editor.value is None:
             name = self.pumps[int(self.choice.value)].name
@@ -530,6 +636,7 @@ class PumpSelectionApp(widgets.VBox):
         self.display = check_system(system)
         for w in (self.t_min, self.t_max, self.editor):
             w.set_system(system)
+        self.system_inputs.set_system(system)
         self.findings.set_system(system)
         self._render()
 

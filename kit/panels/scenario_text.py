@@ -182,7 +182,7 @@ def fitting_rows(fitting_list, original_rows=(), key: str = "fittings",
         raise InputError("fittings", "", f"cannot be saved: {fitting_list.error or 'a row is not valid'}")
     pool = _built_pool(original_rows, key)
     return [fitting_doc(fit, pool, row.fields, system)
-            for row, fit in zip(fitting_list.rows, fits, strict=True)]
+            for row, fit in zip(fitting_list.kept, fits, strict=True)]
 
 
 def liquid_doc(picker, original: dict | None, one_temperature: bool = False) -> dict:

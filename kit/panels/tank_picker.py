@@ -47,7 +47,16 @@ from kit.core import tank as core_tank
 from kit.core.drain import Vent
 from kit.core.tank import HEAD_KINDS, TORISPHERICAL_STANDARDS, Head, Tank
 from kit.errors import InputError, check_range
-from kit.panels.base import KIT_ERRORS, InvalidInput, Panel, error_html, error_widget, field_value
+from kit.panels.base import (
+    KIT_ERRORS,
+    InvalidInput,
+    Panel,
+    display_message,
+    error_html,
+    error_widget,
+    field_value,
+    locate_field,
+)
 from kit.panels.fields import QuantityField, text_for
 
 __all__ = ["TankPicker", "TankSetup", "OutletMark", "SHAPE_LABELS", "SURFACE_LABELS",
@@ -519,19 +528,22 @@ class TankPicker(Panel):
                           field="vent discharge coefficient Cd")
         self.allowable_vacuum = qf("pressure_difference", "allowable vacuum",
                                    "hl-vent-vacuum", text="0.25 kPa")
-        self.vent_note = widgets.HTML('<span class="hl-note">empty vent bore: vent capacity '
-                                      "not checked; the tank's own vacuum rating governs</span>")
+        self.vent_note = widgets.HTML("")
+        self.vent_note.add_class("hl-vent-note")
         self.sketch = widgets.HTML("")
         self.sketch.add_class("hl-tank-sketch")
         self.info = widgets.HTML("")
         self.info.add_class("hl-tank-info")
         self.message = error_widget()
+        self.levels_message = error_widget()
+        self.levels_message.add_class("hl-levels-message")
         self.geometry_box = widgets.VBox([self.diameter, self.length, self.bottom, self.top])
         fields = widgets.VBox([
             self.heading, self.name, self.shape, self.geometry_box, self.table_box,
             widgets.HTML("<b>Levels</b> <span class='hl-note'>(on the tank's datum: its lowest "
                          "inside point)</span>"),
             self.start, self.target, widgets.Label("levels of interest"), self.levels,
+            self.levels_message,
             widgets.HTML("<b>Surface and vent</b>"), self.surface, self.surface_pressure,
             self.vent_diameter, self.vent_cd, self.allowable_vacuum, self.vent_note,
             self.message])
@@ -541,6 +553,7 @@ class TankPicker(Panel):
         self.quantity_fields = (self.diameter, self.length, self.start, self.target,
                                 self.surface_pressure, self.vent_diameter, self.vent_cd,
                                 self.allowable_vacuum)
+        self._refused: list = []
         self._show_shape()
         self._wire()
         if setup is None:
@@ -632,6 +645,13 @@ class TankPicker(Panel):
 
     def _recompute(self) -> None:
         self.message.value = ""
+        for f in self._refused:
+            if hasattr(f, "unrefuse"):
+                f.unrefuse()
+            else:
+                f.remove_class("hl-field-error")
+                self.levels_message.value = ""
+        self._refused = []
         try:
             setup = self._read()
         except InvalidInput as exc:
@@ -640,7 +660,19 @@ class TankPicker(Panel):
             self._render()
             return
         except KIT_ERRORS as exc:
-            self.message.value = error_html(str(exc))
+            # a check across inputs (a start level above the top, a target above the start):
+            # shown beside the field it names, in its display units
+            field = locate_field(self.quantity_fields, exc)
+            if field is not None:
+                field.refuse(field.explain_any(exc))
+                self._refused.append(field)
+            elif str(getattr(exc, "field", "")).startswith("level of interest"):
+                self.levels_message.value = error_html(
+                    display_message(exc, self.system, "elevation"))
+                self.levels.add_class("hl-field-error")
+                self._refused.append(self.levels)
+            else:
+                self.message.value = error_html(str(exc))
             self._set_valid(False, str(exc))
             self._store(None)
             self._render()
@@ -701,7 +733,26 @@ class TankPicker(Panel):
             f.set_system(self.system)
         self._render()
 
+    def _render_vent_note(self) -> None:
+        """What the vent check does with the bore given (or that none is given)."""
+        d = self.vent_diameter.value if self.vent_diameter.valid else None
+        if d is None:
+            text = ("empty vent bore: vent capacity not checked; the tank's own vacuum "
+                    "rating governs")
+        else:
+            sys_ = self.system
+            vac = self.allowable_vacuum.value
+            cd = self.vent_cd.value
+            text = (f"vent bore {units.fmt(d, 'diameter', sys_, digits=3)}"
+                    + (f", Cd {cd:g}" if cd is not None else "")
+                    + ": the pressure drop of the air drawn in at the peak drain rate is "
+                    "checked against the allowable vacuum"
+                    + (f" {units.fmt(vac, 'pressure_difference', sys_, digits=2)}"
+                       if vac is not None else ""))
+        self.vent_note.value = f'<span class="hl-note">{html.escape(text)}</span>'
+
     def _render(self) -> None:
+        self._render_vent_note()
         s = self.value
         if s is None:
             try:

@@ -19,17 +19,17 @@ Contract with the notebooks (``python -m kit run``)
     Absolute path of the scenario TOML file. The notebook's **first cell** reads it
     (``os.environ.get("HEADLINE_SCENARIO", <its own demo scenario>)``).
 ``HEADLINE_RECORD_DIR``
-    Absolute path of the output folder. When it is set, the notebook's **last section**
-    writes the record there::
+    Absolute path of the output folder. The notebook's **last section** writes the record
+    with one call::
 
-        import os
-        from kit.record import build_record, write_record
-        if os.environ.get("HEADLINE_RECORD_DIR"):
-            write_record(build_record(scenario, results, figures=[fig1, fig2]),
-                         os.environ["HEADLINE_RECORD_DIR"], stem)
+        from kit.record import save_record
+        save_record(edited, results, figures=[fig1, fig2], base=sc)
 
-    or, equivalently, ``write_if_requested(scenario, results, figures=[...])``, which does
-    nothing when the variable is unset.
+    which writes into ``HEADLINE_RECORD_DIR`` when it is set and into ``records/`` beside the
+    notebook otherwise (the README's path: no environment variable needed). ``base`` is the
+    scenario as loaded from its file, so the record lists the inputs edited in the notebook.
+    ``write_if_requested(scenario, results, figures=[...])`` still writes only when the
+    variable is set.
 ``HEADLINE_RECORD_STEM``
     The file stem the runner expects (the scenario file's stem); ``write_if_requested`` uses
     it by default.
@@ -49,9 +49,13 @@ Example
 from kit.record.build import (
     FORMAT,
     Record,
+    RecordFiles,
     build_record,
+    input_edits,
+    save_record,
     write_if_requested,
     write_record,
 )
 
-__all__ = ["FORMAT", "Record", "build_record", "write_record", "write_if_requested"]
+__all__ = ["FORMAT", "Record", "RecordFiles", "build_record", "write_record", "save_record",
+           "write_if_requested", "input_edits"]

@@ -15,12 +15,21 @@ that go into the HTML sheet only. The document's layout (``format = "headline-re
     cautions  [text]               always starts with CAUTIONS["general"]
     tables    {name: [row dict]}   the study's display tables (SI values)
     figures   [title]              titles of the figures drawn in the HTML sheet
+    selection {selected, verdict, reason, counts, alternatives: [{name, reason, verdict,
+              subjects}]}     the overall verdict and the design it belongs to
+    edits     {file, rows: [{key, file, notebook}]}   inputs changed in the notebook against
+              the scenario file (absent when the record was built from the file as it is)
     stamp     kit, libraries, python, platform, built_utc
     hashes    {algorithm: "sha256", inputs, results}
 
 ``hashes.inputs`` is the digest of the scenario document; ``hashes.results`` the digest of
-``{kind, results, findings, methods, cautions, tables, stamp}`` (see :data:`RESULT_PARTS`),
-both over canonical JSON (:func:`kit.record.stamp.canonical_json`).
+``{kind, results, findings, methods, cautions, tables, stamp}`` (see :data:`RESULT_PARTS`)
+plus ``selection`` and ``edits`` where the record has them (:data:`OPTIONAL_PARTS`), all
+over canonical JSON (:func:`kit.record.stamp.canonical_json`).
+
+The scenario is stored *self-contained* (:meth:`kit.scenario.Scenario.self_contained`): a
+line list named by ``[batch] file`` travels inline as ``text``, so ``kit check`` reads
+nothing outside the record.
 
 Example
 -------
@@ -47,14 +56,21 @@ from pathlib import Path
 from kit.record.stamp import jsonable, sha256_of, stamp
 
 __all__ = [
-    "FORMAT", "RESULT_PARTS", "Record", "build_record", "flatten_inputs", "header_of",
-    "input_hash", "result_hash", "write_record", "write_if_requested", "record_json",
+    "FORMAT", "RESULT_PARTS", "OPTIONAL_PARTS", "Record", "RecordFiles", "build_record",
+    "flatten_inputs", "header_of", "input_hash", "result_hash", "write_record",
+    "write_if_requested", "save_record", "record_json", "input_edits", "selection_of",
+    "RECORDS_FOLDER",
 ]
 
 FORMAT = "headline-record/1"
 
 #: Parts of the record covered by ``hashes.results``.
 RESULT_PARTS = ("kind", "results", "findings", "methods", "cautions", "tables", "stamp")
+#: Parts covered by ``hashes.results`` when the record has them (records of kit 0.1 lack them).
+OPTIONAL_PARTS = ("selection", "edits")
+
+#: Folder beside the notebook that :func:`save_record` writes into by default.
+RECORDS_FOLDER = "records"
 
 @dataclass
 class Record:
@@ -151,8 +167,63 @@ def input_hash(doc: dict) -> str:
 
 
 def result_hash(data: dict) -> str:
-    """SHA-256 of the canonical JSON of the record's :data:`RESULT_PARTS`."""
-    return sha256_of({k: data.get(k) for k in RESULT_PARTS})
+    """SHA-256 of the canonical JSON of the record's :data:`RESULT_PARTS` (and of its
+    :data:`OPTIONAL_PARTS` that are present)."""
+    parts = {k: data.get(k) for k in RESULT_PARTS}
+    parts.update({k: data[k] for k in OPTIONAL_PARTS if k in data})
+    return sha256_of(parts)
+
+
+def input_edits(file_doc: dict, notebook_doc: dict) -> list[dict]:
+    """Inputs that differ between the scenario file and the notebook's scenario.
+
+    Both documents are flattened (:func:`flatten_inputs`); every key path whose text differs,
+    or that only one of them has, is one row ``{key, file, notebook}`` (``None`` where a side
+    lacks the key), in the notebook's order, then keys only the file has. Texts are compared
+    with runs of white space folded.
+
+    >>> input_edits({"sizing": {"flow_design": "50 m3/h", "duty": "x"}},
+    ...             {"sizing": {"flow_design": "54 m3/h", "duty": "x"}})
+    [{'key': 'sizing.flow_design', 'file': '50 m3/h', 'notebook': '54 m3/h'}]
+    """
+    def rows(doc):
+        return {r["key"]: r["text"] for r in flatten_inputs(jsonable(doc or {}))}
+
+    def same(a, b):
+        return a is not None and b is not None and " ".join(a.split()) == " ".join(b.split())
+
+    f, n = rows(file_doc), rows(notebook_doc)
+    out = [{"key": k, "file": f.get(k), "notebook": v} for k, v in n.items()
+           if not same(f.get(k), v)]
+    out += [{"key": k, "file": v, "notebook": None} for k, v in f.items() if k not in n]
+    return out
+
+
+def _file_doc(scenario, base):
+    """The scenario file's document to compare with: ``base`` (a Scenario or a dict), else
+    the file named by ``scenario.source`` read as plain TOML, else None."""
+    if base is not None:
+        return getattr(base, "doc", base), str(getattr(base, "source", "") or "")
+    source = str(getattr(scenario, "source", "") or "")
+    if not source or source.startswith("<") or not source.endswith(".toml"):
+        return None, source
+    try:
+        import tomllib
+
+        p = Path(source)
+        if not p.is_file() or p.stat().st_size > 5_000_000:
+            return None, source
+        return tomllib.loads(p.read_text(encoding="utf-8")), source
+    except (OSError, ValueError):
+        return None, source
+
+
+def selection_of(results) -> dict:
+    """The record's ``selection`` part: the overall verdict and the design it belongs to."""
+    v = results.verdict()
+    return {"selected": v.selected, "verdict": v.severity, "reason": v.reason,
+            "counts": dict(v.counts),
+            "alternatives": [a.as_dict() for a in getattr(results, "alternatives", [])]}
 
 
 def _display(value: float, kind: str, system: str) -> str:
@@ -182,7 +253,7 @@ def _figure_title(fig) -> str:
     return "" if text is None else str(text)
 
 
-def build_record(scenario, results, *, figures=()) -> Record:
+def build_record(scenario, results, *, figures=(), base=None) -> Record:
     """The checker's record of ``results`` computed from ``scenario``.
 
     Parameters
@@ -193,6 +264,10 @@ def build_record(scenario, results, *, figures=()) -> Record:
         What the study reported.
     figures : sequence of plotly figures
         ``go.Figure``/``FigureWidget`` objects drawn (statically) in the HTML sheet.
+    base : Scenario or dict, optional
+        The scenario as read from its file, to list the inputs edited in the notebook
+        (:func:`input_edits`). Default: the file named by ``scenario.source``, when it is a
+        readable ``.toml`` file.
 
     Returns
     -------
@@ -200,6 +275,8 @@ def build_record(scenario, results, *, figures=()) -> Record:
     """
     from kit.core.findings import CAUTIONS
 
+    file_doc, file_name = _file_doc(scenario, base)
+    edits = input_edits(file_doc, scenario.doc) if file_doc is not None else []
     if hasattr(scenario, "self_contained"):  # carry referenced files (a line list) inline
         scenario = scenario.self_contained()
     doc = jsonable(scenario.doc)
@@ -220,8 +297,11 @@ def build_record(scenario, results, *, figures=()) -> Record:
         "cautions": cautions,
         "tables": jsonable(results.tables or {}),
         "figures": [_figure_title(f) for f in figures],
+        "selection": selection_of(results),
         "stamp": stamp(),
     }
+    if edits:
+        data["edits"] = {"file": os.path.basename(file_name), "rows": jsonable(edits)}
     data["hashes"] = {"algorithm": "sha256", "inputs": input_hash(doc),
                       "results": result_hash(data)}
     return Record(data, tuple(figures))
@@ -243,6 +323,74 @@ def write_record(record: Record, out_dir, stem: str) -> tuple[Path, Path]:
     return html_path, json_path
 
 
+@dataclass(frozen=True)
+class RecordFiles:
+    """The two files of a written record; prints as the paths, shows as links in a notebook."""
+
+    html: Path
+    json: Path
+    verdict: str = ""
+
+    def __iter__(self):  # (html, json) = save_record(...) keeps working
+        return iter((self.html, self.json))
+
+    def __str__(self) -> str:
+        v = f" (verdict {self.verdict.upper()})" if self.verdict else ""
+        return f"record written{v}: {self.html} and {self.json}"
+
+    __repr__ = __str__
+
+    def _repr_html_(self) -> str:
+        import html as _h
+
+        v = f" — verdict <b>{_h.escape(self.verdict.upper())}</b>" if self.verdict else ""
+        return (f"<p>Record written{v}: <code>{_h.escape(str(self.html))}</code> (open it in a "
+                f"browser to print) and <code>{_h.escape(str(self.json))}</code> (for "
+                "<code>headline check</code>).</p>")
+
+
+def _stem_of(scenario, stem: str | None) -> str:
+    if stem is None:
+        stem = os.environ.get("HEADLINE_RECORD_STEM")
+    if not stem:
+        source = str(getattr(scenario, "source", ""))
+        stem = Path(source).stem if source and not source.startswith("<") else scenario.kind
+    return stem
+
+
+def save_record(scenario, results, *, figures=(), folder=RECORDS_FOLDER, stem: str | None = None,
+                base=None) -> RecordFiles:
+    """Build the record and write it: the one call a notebook's last cell (or its "Build
+    record" button) makes.
+
+    The folder is ``HEADLINE_RECORD_DIR`` when set (``headline run``), else ``folder``
+    (default ``records``, relative to the working folder: beside the notebook in JupyterLab
+    and Voilà). ``stem`` defaults to ``HEADLINE_RECORD_STEM``, else the scenario file's stem,
+    else the kind. ``base`` is the scenario as read from its file (see :func:`build_record`),
+    so the record lists the inputs edited in the notebook.
+
+    Raises :class:`~kit.errors.RecordError` when the folder cannot be written.
+
+    Returns
+    -------
+    files : RecordFiles
+        ``html`` and ``json`` paths and the overall verdict word.
+    """
+    from kit.errors import RecordError
+
+    out_dir = os.environ.get("HEADLINE_RECORD_DIR") or folder
+    if not str(out_dir).strip():
+        raise RecordError("''", "the records folder name is empty")
+    stem = _stem_of(scenario, stem)
+    rec = build_record(scenario, results, figures=figures, base=base)
+    try:
+        html_path, json_path = write_record(rec, out_dir, stem)
+    except OSError as exc:
+        raise RecordError(str(Path(out_dir) / stem), f"cannot be written: "
+                          f"{exc.strerror or exc}") from None
+    return RecordFiles(html_path, json_path, rec.data["selection"]["verdict"])
+
+
 def write_if_requested(scenario, results, *, figures=(), stem: str | None = None):
     """Write the record when ``HEADLINE_RECORD_DIR`` is set (as ``python -m kit run`` does).
 
@@ -252,9 +400,5 @@ def write_if_requested(scenario, results, *, figures=(), stem: str | None = None
     out_dir = os.environ.get("HEADLINE_RECORD_DIR")
     if not out_dir:
         return None
-    if stem is None:
-        stem = os.environ.get("HEADLINE_RECORD_STEM")
-    if not stem:
-        source = str(getattr(scenario, "source", ""))
-        stem = Path(source).stem if source and not source.startswith("<") else scenario.kind
-    return write_record(build_record(scenario, results, figures=figures), out_dir, stem)
+    return write_record(build_record(scenario, results, figures=figures), out_dir,
+                        _stem_of(scenario, stem))

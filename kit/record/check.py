@@ -57,8 +57,9 @@ from kit.errors import HeadlineError, RecordError
 
 __all__ = [
     "RTOL", "ABS_FLOOR", "DEFAULT_FLOOR", "EXIT", "Row", "VersionNote", "CheckReport",
-    "values_match", "read_record", "validate_record", "check_record", "check_data",
-    "format_report", "check_main",
+    "values_match", "compare_selection", "read_record", "validate_record", "check_record", "check_data",
+    "format_report", "check_main", "check_tolerance", "outside_files", "MAX_RECORD_BYTES",
+    "RTOL_MAX", "ENTRY_POINT_NOTE",
 ]
 
 #: Relative tolerance of the comparison [-].
@@ -73,6 +74,18 @@ ABS_FLOOR: dict[str, float] = {
     "viscosity": 1e-12, "kinematic_viscosity": 1e-15, "power": 1e-3, "energy": 1e-3,
     "time": 1e-6, "speed": 1e-6, "fraction": 1e-9, "dimensionless": 1e-9,
 }
+#: Largest record file read [bytes]; a line list of 100,000 rows carried inline fits.
+MAX_RECORD_BYTES = 64_000_000
+
+#: Largest relative tolerance accepted by ``--rtol`` [-].
+RTOL_MAX = 0.1
+
+#: What every check prints: run the installed entry point from a folder of your own.
+ENTRY_POINT_NOTE = (
+    "run the installed entry point `headline check RECORD.json`: a plain `python -m kit` run "
+    "puts the current folder first on the import path, so Python modules lying beside a "
+    "record (a folder named kit, a numpy.py, ...) could be imported in place of the kit")
+
 #: Floor for a kind not listed in :data:`ABS_FLOOR` and for findings [SI].
 DEFAULT_FLOOR = 1e-9
 
@@ -242,6 +255,18 @@ def compare_findings(recorded: list[dict], recomputed, rtol: float = RTOL) -> li
     return rows
 
 
+def compare_selection(recorded: dict, results) -> list[Row]:
+    """Rows comparing the recorded selected design and overall verdict with the recomputed."""
+    v = results.verdict()
+    rows = []
+    for label, a, b in (("selected design", recorded.get("selected"), v.selected),
+                        ("overall verdict", recorded.get("verdict"), v.severity)):
+        a_text = "—" if a is None else str(a).upper() if label == "overall verdict" else str(a)
+        b_text = "—" if b is None else str(b).upper() if label == "overall verdict" else str(b)
+        rows.append(Row(label, a_text, b_text, "", "match" if a == b else "MISMATCH"))
+    return rows
+
+
 def compare_stamp(recorded: dict) -> list[VersionNote]:
     """Differences between a recorded stamp and the installed software (policy above)."""
     from kit.record.stamp import stamp
@@ -268,8 +293,27 @@ def compare_stamp(recorded: dict) -> list[VersionNote]:
 
 
 def read_record(path) -> dict:
-    """Read and validate a record JSON file; any defect raises :class:`RecordError`."""
+    """Read and validate a record JSON file; any defect raises :class:`RecordError`.
+
+    Refused: a missing file, a folder, a file over :data:`MAX_RECORD_BYTES`, text that is not
+    UTF-8 JSON, JSON nested deeper than the parser allows, and everything
+    :func:`validate_record` refuses.
+    """
     p = Path(path)
+    if not str(path):
+        raise RecordError("''", "the file name is empty")
+    if p.is_dir():
+        raise RecordError(str(p), "is a folder; give the record's .json file")
+    try:
+        size = p.stat().st_size
+    except FileNotFoundError:
+        raise RecordError(str(p), "does not exist") from None
+    except OSError as exc:
+        raise RecordError(str(p), f"cannot be read: {exc.strerror}") from None
+    if size > MAX_RECORD_BYTES:
+        raise RecordError(str(p), f"is {size / 1e6:.1f} MB; a record is at most "
+                          f"{MAX_RECORD_BYTES / 1e6:.0f} MB (this is not a record, or it is "
+                          "damaged)")
     try:
         text = p.read_text(encoding="utf-8")
     except FileNotFoundError:
@@ -285,7 +329,12 @@ def read_record(path) -> dict:
                           f"{exc.msg}); the file is damaged or truncated") from None
     except ValueError as exc:
         raise RecordError(str(p), f"is not valid JSON ({exc})") from None
-    validate_record(data, str(p))
+    except RecursionError:
+        raise RecordError(str(p), "is nested too deeply to be a record") from None
+    try:
+        validate_record(data, str(p))
+    except RecursionError:
+        raise RecordError(str(p), "is nested too deeply to be a record") from None
     return data
 
 
@@ -341,6 +390,15 @@ def validate_record(data, path: str = "<record>") -> None:
                 _num(f["value"])
             except ValueError as exc:
                 raise RecordError(path, f"findings[{i}].value: {exc}") from None
+    sel = data.get("selection")
+    if sel is not None and (not isinstance(sel, dict)
+                            or sel.get("verdict") not in ("pass", "check", "fail")
+                            or not isinstance(sel.get("alternatives", []), list)):
+        raise RecordError(path, "field 'selection' must be an object with a verdict of pass, "
+                          "check or fail and a list of alternatives")
+    edits = data.get("edits")
+    if edits is not None and (not isinstance(edits, dict) or not isinstance(edits.get("rows"), list)):
+        raise RecordError(path, "field 'edits' must be an object with a list of rows")
     hashes = data["hashes"]
     if hashes.get("algorithm") != "sha256" or not all(
             isinstance(hashes.get(k), str) for k in ("inputs", "results")):
@@ -352,6 +410,13 @@ def validate_record(data, path: str = "<record>") -> None:
     if build.result_hash(data) != hashes["results"]:
         raise RecordError(path, "result hash does not match: results, findings, methods, "
                           "cautions or stamp were edited or damaged after the record was built")
+    outside = outside_files(doc)
+    if outside:
+        key, name = outside[0]
+        raise RecordError(path, f"its scenario refers to the outside file {name!r} at '{key}' "
+                          "instead of carrying it inline; a record must hold everything it is "
+                          "checked from (build it with kit.record.build_record, which carries "
+                          "line lists inline)")
     if doc.get("schema") != SCHEMA:
         raise RecordError(path, f"scenario schema is {doc.get('schema')!r}; expected {SCHEMA!r}")
     if doc.get("kind") not in KINDS or data["kind"] != doc.get("kind"):
@@ -371,6 +436,51 @@ def validate_record(data, path: str = "<record>") -> None:
 
 _TYPE = {str: "string", dict: "object", list: "array"}
 
+#: keys that name a file beside the scenario; a record must carry the file's text inline
+_FILE_KEYS = ("file",)
+
+
+def outside_files(doc, prefix: str = "") -> list[tuple[str, str]]:
+    """``[(key path, file name)]`` of every table that names a file without its ``text``.
+
+    >>> outside_files({"batch": {"file": "list.csv"}})
+    [('batch.file', 'list.csv')]
+    >>> outside_files({"batch": {"file": "list.csv", "text": "tag,flow"}})
+    []
+    """
+    out = []
+    if isinstance(doc, dict):
+        for k, v in doc.items():
+            key = f"{prefix}.{k}" if prefix else str(k)
+            if k in _FILE_KEYS and isinstance(v, str) and "text" not in doc:
+                out.append((key, v))
+            elif isinstance(v, (dict, list)):
+                out += outside_files(v, key)
+    elif isinstance(doc, list):
+        for i, v in enumerate(doc):
+            out += outside_files(v, f"{prefix}[{i}]")
+    return out
+
+
+def check_tolerance(rtol) -> float:
+    """The relative tolerance as a float, or :class:`~kit.errors.OutOfRangeError`: it must be
+    finite and between 0 and :data:`RTOL_MAX`.
+
+    >>> check_tolerance(1e-6)
+    1e-06
+    """
+    from kit.errors import OutOfRangeError
+
+    try:
+        x = float(rtol)
+    except (TypeError, ValueError):
+        raise OutOfRangeError("relative tolerance", rtol) from None
+    if not math.isfinite(x):
+        raise OutOfRangeError("relative tolerance", x)
+    if x < 0 or x > RTOL_MAX:
+        raise OutOfRangeError("relative tolerance", x, low=0.0, high=RTOL_MAX)
+    return x
+
 
 # ------------------------------------------------------------------ checking
 
@@ -381,11 +491,16 @@ def check_data(data: dict, path: str = "<record>", rtol: float = RTOL,
     from kit.results import compute
     from kit.scenario import Scenario
 
+    rtol = check_tolerance(rtol)
     report = CheckReport(path, strict_versions=strict_versions, rtol=rtol)
-    results = compute(Scenario(json.loads(json.dumps(data["scenario"])), path))
+    if outside_files(data["scenario"]):  # validate_record refuses these; never read beside it
+        raise RecordError(path, "its scenario refers to an outside file")
+    results = compute(Scenario(json.loads(json.dumps(data["scenario"])), "<record>"))
     report.rows = compare_values(data["results"], results.values, rtol)
     report.finding_rows = compare_findings(data["findings"], results.findings, rtol)
     report.versions = compare_stamp(data["stamp"])
+    if isinstance(data.get("selection"), dict):
+        report.finding_rows += compare_selection(data["selection"], results)
     rec_methods = [m.get("name") for m in data["methods"] if isinstance(m, dict)]
     new_methods = [m.name for m in results.methods]
     if rec_methods != new_methods:
@@ -443,38 +558,85 @@ def format_report(report: CheckReport) -> str:
     return "\n".join(lines)
 
 
+def _tolerance_arg(text: str) -> float:
+    try:
+        return check_tolerance(text)
+    except (HeadlineError, ValueError) as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from None
+
+
+def _beside_record_risk() -> str | None:
+    """A warning when the current folder is first on the import path and holds Python code."""
+    first = sys.path[0] if sys.path else None
+    if first not in ("", "."):
+        try:
+            if first is None or Path(first).resolve() != Path.cwd().resolve():
+                return None
+        except OSError:
+            return None
+    import kit
+
+    here = Path.cwd()
+    own = Path(kit.__file__).resolve().parent
+    stray_kit = (here / "kit").is_dir() and (here / "kit").resolve() != own
+    found = [p.name for p in here.glob("*.py")][:3] + (["kit/"] if stray_kit else [])
+    if not found:
+        return None
+    return ("warning: this run imports from the current folder, which holds "
+            f"{', '.join(found)}; run `headline check` from a folder of your own")
+
+
 def check_main(argv=None) -> int:
-    """``python -m kit check RECORD.json``; returns the exit code (see module docstring)."""
-    ap = argparse.ArgumentParser(
-        prog="python -m kit check",
-        description="Re-run a record's scenario with the installed kit and compare every result.",
+    """``headline check RECORD.json``; returns the exit code (see module docstring).
+
+    Refusals are one line ``headline: check ... — why`` on stderr.
+    """
+    from kit.cli import CliError, Parser, say_error
+
+    ap = Parser(
+        prog="headline check",
+        description="Re-run a record's scenario with the installed kit and compare every result. "
+                    "Nothing outside the record's JSON file is read.",
         epilog="exit codes: 0 all match; 1 mismatch, missing or extra result; 2 damaged or "
-               "edited record; 3 the scenario cannot be recomputed")
+               "edited record, or bad arguments; 3 the scenario cannot be recomputed")
     ap.add_argument("record", help="the record's JSON file")
-    ap.add_argument("--rtol", type=float, default=RTOL,
-                    help=f"relative tolerance (default {RTOL:g}); absolute floors per kind stay")
+    ap.add_argument("--rtol", type=_tolerance_arg, default=RTOL,
+                    help=f"relative tolerance, 0 to {RTOL_MAX:g} (default {RTOL:g}); absolute "
+                         "floors per kind stay")
     ap.add_argument("--strict-versions", action="store_true",
                     help="fail when the kit major version or fluids/CoolProp versions differ")
-    a = ap.parse_args(argv)
+    try:
+        a = ap.parse_args(argv)
+    except CliError as exc:
+        say_error(exc.what, exc.why)
+        return exc.code
+    what = f"check {a.record!r}"
     t0 = time.perf_counter()
     try:
         data = read_record(a.record)
     except RecordError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        say_error(what, str(exc))
         return EXIT["bad_record"]
     try:
         report = check_data(data, a.record, a.rtol, a.strict_versions)
+    except RecordError as exc:
+        say_error(what, str(exc))
+        return EXIT["bad_record"]
     except HeadlineError as exc:
-        print(f"error: the installed kit cannot recompute this scenario: {exc}", file=sys.stderr)
+        say_error(what, f"the installed kit cannot recompute this scenario: {exc}")
         return EXIT["cannot_recompute"]
     except ImportError as exc:
-        print(f"error: the installed kit has no study for kind {data['kind']!r}: {exc}",
-              file=sys.stderr)
+        say_error(what, f"the installed kit has no study for kind {data['kind']!r}: {exc}")
         return EXIT["cannot_recompute"]
-    except Exception as exc:  # a defect of the study: name it, never a bare traceback
-        print(f"error: recomputing the scenario failed with {type(exc).__name__}: {exc}",
-              file=sys.stderr)
+    except Exception as exc:  # a defect of the study: name it in one line, exit 3
+        say_error(what, f"recomputing the scenario failed with {type(exc).__name__}: {exc} "
+                  "(a defect of the kit: please report it with the record)")
         return EXIT["cannot_recompute"]
     report.elapsed = time.perf_counter() - t0
+    if Path(sys.argv[0] if sys.argv else "").name != "headline":
+        report.notes.append(ENTRY_POINT_NOTE)
+    risk = _beside_record_risk()
+    if risk:
+        report.notes.append(risk)
     print(format_report(report))
     return report.exit_code

@@ -15,9 +15,12 @@ criterion it misses and by how much). The head loss of the chosen size is
 ``(f L/D + K) V²/(2g)`` with the row's total K.
 
 The work is vectorised: rows sharing a pipe family (standard, schedule, material, condition)
-are evaluated over all the family's bores in one numpy pass (an ``n_rows × n_bores`` array);
-each row's density, viscosity and duty limits enter as columns, the liquid states computed
-once per distinct (liquid, temperature). Time is linear in the number of rows.
+are evaluated together with numpy, each row's density, viscosity and duty limits entering as
+columns (the liquid states computed once per distinct liquid and temperature). A first pass
+takes each row over a window of :data:`WINDOW` bores starting just below the first bore
+whose velocity is within ``v_max`` (velocity falls as the bore grows, so no smaller bore can
+pass or check); a row that passes there has its answer. The other rows ('check', 'fail', or a
+pass further up) are evaluated over every bore of the family. Time is linear in the rows.
 
 Example
 -------
@@ -33,6 +36,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import lru_cache
+from operator import attrgetter, itemgetter
 
 import numpy as np
 
@@ -105,13 +109,6 @@ def _liquid_of(key, conc, default_liquid, cache):
     return cache[k]
 
 
-def _error_row(r, exc) -> BatchRow:
-    text = str(exc)
-    where = f"batch row {r.row} (tag {r.tag})"
-    return BatchRow(r.tag, "", _NAN, _NAN, _NAN, _NAN, _NAN, "error",
-                    text if r.tag in text else f"{where}: {text}", r.row)
-
-
 def _miss_text(ratio_v, ratio_dp, V, dp, v_max, dp_max, label) -> str:
     if ratio_v >= ratio_dp:
         return (f"velocity {V:.3g} m/s is {100 * (ratio_v - 1):.0f} % above the {label} "
@@ -167,7 +164,6 @@ def _codes(*cols) -> tuple[np.ndarray, list]:
 
 
 def _size(ll: LineList, default_liquid, p_baro: float, duties: dict) -> list[BatchRow]:
-    n = len(ll.tag)
     out = [BatchRow(e.tag, "", _NAN, _NAN, _NAN, _NAN, _NAN, "error", e.message, e.row)
            for e in ll.errors]
     failed = {}  # index -> error, for rows that cannot be sized
@@ -223,18 +219,27 @@ def _size(ll: LineList, default_liquid, p_baro: float, duties: dict) -> list[Bat
         idx = np.flatnonzero((fcode == c) & ~bad)
         if len(idx):
             out.extend(_size_family(ll, idx, fam, rho, mu, vmin, vmax, dpmax, labels))
-    out.sort(key=lambda b: b.row)
-    del n
+    out.sort(key=attrgetter("row"))
     return out
 
 
-def _size_family(ll, idx, fam, rho, mu, vmin, vmax, dpmax, labels) -> list[BatchRow]:
-    """All rows ``idx`` of one pipe family over all its bores in one numpy pass."""
-    noms, D, eps = family_bores(*fam)
-    Q, L, K = ll.Q[idx], ll.L[idx], ll.K[idx]
-    vmin, vmax, dpmax = vmin[idx, None], vmax[idx, None], dpmax[idx, None]
-    V, _, f, dp = batch_friction(Q[:, None], D[None, :], eps[None, :], rho[idx, None],
-                                 mu[idx, None])
+def _take(seq, ii: list) -> list:
+    """``[seq[i] for i in ii]`` at C speed."""
+    if len(ii) == len(seq):
+        return list(seq)
+    if len(ii) == 1:
+        return [seq[ii[0]]]
+    return list(itemgetter(*ii)(seq))
+
+
+#: Bores evaluated per row in the first pass (from the first bore slow enough for v_max).
+WINDOW = 4
+
+
+def _grade(Q, rho, mu, vmin, vmax, dpmax, D, eps):
+    """Verdict code (0 pass, 1 check, 2 fail), chosen column, V, dp/L, f at it, for rows
+    (column vectors) over bores ``D`` (a row of bores, or one row of bores per row)."""
+    V, _, f, dp = batch_friction(Q, D, eps, rho, mu)
     top = 1.0 - MARGINAL_FRACTION
     passes = (V <= vmax * top) & (dp <= dpmax * top) & (V >= vmin)
     ok = (V <= vmax) & (dp <= dpmax)
@@ -242,19 +247,47 @@ def _size_family(ll, idx, fam, rho, mu, vmin, vmax, dpmax, labels) -> list[Batch
     j = np.where(any_pass, passes.argmax(axis=1),
                  np.where(any_ok, ok.argmax(axis=1),
                           np.maximum(V / vmax, dp / dpmax).argmin(axis=1)))
-    r = np.arange(len(idx))
-    Vj, dpj, fj, Dj = V[r, j], dp[r, j], f[r, j], D[j]
+    r = np.arange(len(j))
+    return np.where(any_pass, 0, np.where(any_ok, 1, 2)), j, V[r, j], dp[r, j], f[r, j]
+
+
+def _size_family(ll, idx, fam, rho, mu, vmin, vmax, dpmax, labels) -> list[BatchRow]:
+    """All rows ``idx`` of one pipe family over its bores in numpy passes.
+
+    First pass: each row over a window of :data:`WINDOW` bores starting one below the first
+    bore whose velocity is within ``v_max`` (no smaller bore can pass or check, velocity
+    falling as the bore grows); a row that passes there has its answer, the smallest passing
+    size. Second pass: the other rows ('check', 'fail' or a pass further up) over every bore.
+    """
+    noms, D, eps = family_bores(*fam)
+    Q, L, K = ll.Q[idx], ll.L[idx], ll.K[idx]
+    args = (Q[:, None], rho[idx, None], mu[idx, None], vmin[idx, None], vmax[idx, None],
+            dpmax[idx, None])
+    m = len(D)
+    if m > WINDOW and np.all(np.diff(D) > 0):
+        area = np.pi / 4 * D * D
+        start = np.clip(np.searchsorted(area, Q / vmax[idx]) - 1, 0, m - WINDOW)
+        cols = start[:, None] + np.arange(WINDOW)
+        verdict, j, Vj, dpj, fj = _grade(*args, D[cols], eps[cols])
+        j = start + j
+        redo = np.flatnonzero(verdict != 0)
+        if len(redo):
+            v2, j2, V2, dp2, f2 = _grade(*(a[redo] for a in args), D[None, :], eps[None, :])
+            verdict[redo], j[redo], Vj[redo], dpj[redo], fj[redo] = v2, j2, V2, dp2, f2
+    else:
+        verdict, j, Vj, dpj, fj = _grade(*args, D[None, :], eps[None, :])
+    vmax, dpmax = vmax[idx, None], dpmax[idx, None]
+    Dj = D[j]
     hl = (fj * L / Dj + K) * Vj * Vj / (2 * G)
-    verdict = np.where(any_pass, 0, np.where(any_ok, 1, 2))
     ii = idx.tolist()
-    tags = [ll.tag[i] for i in ii]
+    tags = _take(ll.tag, ii)
     rows = ll.row[idx].tolist()
     rise = ll.rise[idx].tolist()
-    duty = [ll.duty[i] for i in ii]
+    duty = _take(ll.duty, ii)
     size = [noms[k] for k in j.tolist()]
     out = list(map(BatchRow, tags, size, Dj.tolist(), Vj.tolist(), dpj.tolist(), hl.tolist(),
                    rise, [_VERDICTS[v] for v in verdict.tolist()],
-                   [_why(v, labels[d]) for v, d in zip(verdict.tolist(), duty, strict=True)],
+                   list(map(_why, verdict.tolist(), map(labels.__getitem__, duty))),
                    rows))
     for k in np.flatnonzero(verdict == 2).tolist():
         lab = labels[duty[k]]
@@ -269,6 +302,7 @@ def _size_family(ll, idx, fam, rho, mu, vmin, vmax, dpmax, labels) -> list[Batch
 _VERDICTS = ("pass", "check", "fail")
 
 
+@lru_cache(maxsize=64)
 def _why(verdict: int, label: str) -> str:
     if verdict == 0:
         return f"smallest size meeting every {label} criterion"

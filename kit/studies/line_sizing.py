@@ -34,38 +34,30 @@ Example
 
 from __future__ import annotations
 
-import csv
-import io
 from dataclasses import dataclass
-from functools import cached_property, lru_cache
+from functools import cached_property
 from pathlib import Path
 
-import numpy as np
-
 from kit import scenario as scn
-from kit import units
-from kit.core.criteria import DUTY_CLASSES, MARGINAL_FRACTION, DutyClass
-from kit.core.findings import cautions_for
+from kit.core.criteria import DUTY_CLASSES
+from kit.core.findings import Finding, Severity, cautions_for
 from kit.core.friction import FRICTION_METHOD
-from kit.core.line import G
-from kit.core.sizing import SizingResult, batch_friction, size_line
-from kit.errors import DimensionError, HeadlineError, InputError, ScenarioError, check_range
+from kit.core.sizing import SizingResult, size_line
+from kit.errors import HeadlineError, ScenarioError
+from kit.inputs.line_list import LINE_LIST_COLUMNS, read_line_list
 from kit.inputs.line_sizing import (
     SizingInputs,
     candidate_pipes,
     inputs,
     sizes_in_reach,
 )
-from kit.results import Results
+from kit.results import Alternative, Results
 from kit.studies.integrity import METHODS as INTEGRITY_METHODS
+from kit.studies.line_list import BatchRow, size_batch
 
 __all__ = ["SizingInputs", "SizingStudy", "inputs", "study", "run", "compute", "size_batch",
            "read_line_list", "candidate_pipes", "sizes_in_reach", "BatchRow", "LINE_LIST_COLUMNS",
            "candidate_rows", "batch_rows", "batch_text", "caution_topics"]
-
-#: Columns of a line list, in order (``tag`` is required; the others have defaults).
-LINE_LIST_COLUMNS = ("tag", "flow", "liquid", "temperature", "length", "rise", "duty",
-                     "standard", "schedule", "material", "condition", "k_total")
 
 
 @dataclass(frozen=True)
@@ -155,164 +147,6 @@ def _integrity_row(st: SizingStudy, c) -> dict:
 
 # ------------------------------------------------------------------ batch
 
-@dataclass(frozen=True)
-class BatchRow:
-    """One sized row of a line list (SI); ``verdict`` 'pass'/'check'/'fail' or 'error'."""
-
-    tag: str
-    size: str
-    bore: float
-    velocity: float
-    dp_per_m: float
-    head_loss: float
-    rise: float
-    verdict: str
-    reason: str
-
-
-def read_line_list(text: str) -> list[dict]:
-    """Rows of a CSV line list as dicts of strings (header row with 'tag' required).
-
-    >>> read_line_list("tag,flow\\nA, 10 gpm\\n")
-    [{'tag': 'A', 'flow': '10 gpm'}]
-    """
-    reader = csv.DictReader(io.StringIO(text))
-    if not reader.fieldnames or "tag" not in [f.strip() for f in reader.fieldnames]:
-        raise ScenarioError("batch", "line list must be CSV with a header row including 'tag'")
-    return [{k.strip(): (v or "").strip() if isinstance(v, str) else "" for k, v in row.items()
-             if k} for row in reader]
-
-
-def _bores(standard, schedule, material, condition):
-    pipes = candidate_pipes(standard, schedule, material, condition)
-    if not pipes:
-        raise InputError("schedule", schedule, f"is not a schedule of any size of {standard}")
-    return _bore_arrays(pipes)
-
-
-@lru_cache(maxsize=256)
-def _bore_arrays(pipes: tuple):
-    return ([p.nominal for p in pipes], np.array([p.Di for p in pipes]),
-            np.array([p.roughness for p in pipes]))
-
-
-@lru_cache(maxsize=512)
-def _affine(unit: str, kind: str) -> tuple[float, float]:
-    """(a, b) with parse(f"{x} {unit}") = a + b·x: every unit conversion here is affine."""
-    a = units.parse(f"0 {unit}", kind, "unit")
-    return a, units.parse(f"1 {unit}", kind, "unit") - a
-
-
-def _parse(text, kind: str, field: str) -> float:
-    """:func:`kit.units.parse`, with the unit's conversion cached (same value, same errors)."""
-    value, unit = units.split_text(text, field, units.KINDS[kind][1])
-    try:
-        a, b = _affine(unit, kind)
-    except (HeadlineError, DimensionError):
-        return units.parse(text, kind, field)  # raises with the user's own text
-    return a + b * value
-
-
-def _row_liquid(text, default_liquid):
-    from kit.core.liquids import make_liquid
-
-    if text in ("", "scenario"):
-        if default_liquid is None:
-            raise ScenarioError("liquid", "row names the scenario liquid, but there is none")
-        return default_liquid
-    key, _, conc = text.partition(":")
-    return make_liquid(key, units.parse(conc, "fraction", "concentration") if conc else None)
-
-
-def _pick(V, dp, duty: DutyClass):
-    """Index and verdict of the smallest bore that passes (else checks) the duty's velocity
-    and pressure-drop criteria — the rule of :func:`kit.core.sizing.size_line`."""
-    top = 1.0 - MARGINAL_FRACTION
-    passes = (V <= duty.v_max * top) & (dp <= duty.dp_max * top) & (V >= duty.v_min)
-    if passes.any():
-        return int(np.argmax(passes)), "pass"
-    ok = (V <= duty.v_max) & (dp <= duty.dp_max)
-    if ok.any():
-        return int(np.argmax(ok)), "check"
-    return None, "fail"
-
-
-def size_batch(rows: list[dict], default_liquid=None, p_baro: float = 101325.0,
-               duties: dict | None = None) -> list[BatchRow]:
-    """Size every row of a line list.
-
-    For each row: the smallest size of its schedule whose velocity and friction pressure drop
-    at the row's flow meet its duty class (Darcy–Weisbach with Colebrook over all bores at
-    once, :func:`kit.core.sizing.batch_friction`); verdict 'pass' when every criterion is met
-    with the 10 % margin, 'check' when only the limits themselves are met, 'fail' when no size
-    meets them. The head loss is ``(f L/D + K) V²/2g`` with the row's total K. A bad row gets
-    verdict ``error`` and the kit's message; the other rows go on.
-
-    Parameters
-    ----------
-    rows : list of dict
-        From :func:`read_line_list` (columns :data:`LINE_LIST_COLUMNS`) [-]
-    default_liquid : Liquid or UserLiquid, optional
-        The liquid of rows whose ``liquid`` is empty or ``scenario`` [-]
-    p_baro : float
-        Barometric pressure: the pressure of the liquid states [Pa]
-    duties : dict, optional
-        Duty classes by key (default :data:`kit.core.criteria.DUTY_CLASSES`) [-]
-
-    Returns
-    -------
-    list of BatchRow
-    """
-    duties = DUTY_CLASSES if duties is None else duties
-    out = []
-    nan = float("nan")
-    for i, row in enumerate(rows):
-        tag = row.get("tag") or f"row {i + 1}"
-        try:
-            Q = check_range(f"{tag}: flow", _parse(row.get("flow"), "flow", f"{tag}: flow"),
-                            "m³/s", low=0.0, high=100.0)
-            L = check_range(f"{tag}: length", _parse(row.get("length"), "length",
-                                                     f"{tag}: length"), "m", low=0.0, high=1e6)
-            rise = check_range(f"{tag}: rise", _parse(row.get("rise") or "0 m", "length",
-                                                      f"{tag}: rise"), "m", low=-L, high=L,
-                               low_inclusive=True)
-            T = _parse(row.get("temperature") or "20 degC", "temperature", f"{tag}: temperature")
-            duty_key = row.get("duty") or "general_transfer"
-            if duty_key not in duties:
-                raise ScenarioError(f"{tag}: duty", f"must be one of {', '.join(duties)}, "
-                                    f"not {duty_key!r}")
-            duty = duties[duty_key]
-            try:
-                K = float(row.get("k_total") or 0.0)
-            except ValueError:
-                raise InputError(f"{tag}: k_total", row.get("k_total"),
-                                 "must be a plain number (the row's total K)") from None
-            K = check_range(f"{tag}: k_total", K, "-", low=0.0, high=1e4, low_inclusive=True)
-            state = _row_liquid(row.get("liquid", ""), default_liquid).state(T, p_baro)
-            noms, D, eps = _bores(row.get("standard") or "asme_b36_10m",
-                                  row.get("schedule") or "40",
-                                  row.get("material") or "carbon_steel",
-                                  row.get("condition") or "new")
-            V, Re, f, dp = batch_friction(Q, D, eps, state.rho, state.mu)
-            j, verdict = _pick(V, dp, duty)
-            if j is None:
-                out.append(BatchRow(tag, "", nan, nan, nan, nan, rise, "fail",
-                                    f"no size of the schedule meets the {duty.label} velocity "
-                                    "and pressure-drop limits"))
-                continue
-            hl = (f[j] * L / D[j] + K) * V[j] ** 2 / (2 * G)
-            why = (f"smallest size meeting every {duty.label} criterion" if verdict == "pass"
-                   else f"smallest size within the {duty.label} limits, but near one or below "
-                        "the velocity range")
-            out.append(BatchRow(tag, noms[j], float(D[j]), float(V[j]), float(dp[j]),
-                                float(hl), rise, verdict, why))
-        except (HeadlineError, DimensionError) as exc:
-            text = str(exc)
-            out.append(BatchRow(tag, "", nan, nan, nan, nan, nan, "error",
-                                text if tag in text else f"{tag}: {text}"))
-    return out
-
-
 def batch_rows(batch) -> list[dict]:
     """Row dicts (SI) of a sized line list, for tables and the record."""
     return [vars(x).copy() for x in batch]
@@ -369,6 +203,15 @@ def compute(sc) -> Results:
               c.p_lowest - inp.p_baro, "pressure_difference")
         r.findings += list(c.findings)
         r.findings += list(st.integrity[c.pipe.nominal].findings)
+        r.selected = c.pipe.label
+    else:
+        r.findings += _no_size_findings(res)
+    for i, c in enumerate(res.candidates):
+        if i != res.recommended:
+            r.alternatives.append(Alternative(
+                c.pipe.label, c.error or c.governing or f"{c.verdict}: not the smallest that "
+                "meets the criteria", "fail" if c.error else c.verdict,
+                subjects=(c.pipe.label, f"NPS {c.pipe.nominal}:")))
     text = batch_text(sc)
     if text is not None:
         duties = dict(DUTY_CLASSES)
@@ -378,6 +221,13 @@ def compute(sc) -> Results:
         for x in b:
             if x.verdict in ("pass", "check"):
                 r.add(f"batch.{x.tag}.bore", f"line {x.tag}: bore", x.bore, "diameter")
+            elif x.verdict in ("fail", "error"):
+                r.findings.append(Finding(
+                    Severity.FAIL, f"line-list row {x.row} ({x.tag})",
+                    "input" if x.verdict == "error" else "size", float("nan"), "-",
+                    "a valid row sized by the duty's criteria" if x.verdict == "error" else
+                    "a size of the schedule meeting the duty's criteria", x.reason,
+                    "the line list"))
     r.method("Pipe friction", FRICTION_METHOD["name"] + "; " + " ".join(FRICTION_METHOD["references"]))
     r.method("Sizing criteria", f"{inp.duty.label}: {inp.duty.source}")
     for name, text_ in INTEGRITY_METHODS:
@@ -388,6 +238,22 @@ def compute(sc) -> Results:
              "geometry, Hooper (1981) 2-K, Darby (2001) 3-K, as chosen per row")
     r.cautions = cautions_for(*caution_topics(inp))
     return r
+
+
+def _no_size_findings(res) -> list:
+    """Where no candidate passes or checks: one FAIL per size with its reason, and the nearest
+    miss named — never an empty verdict."""
+    out = [Finding(Severity.FAIL, "line sizing", "recommended size", float("nan"), "-",
+                   "a candidate meeting every criterion",
+                   f"no candidate size meets the criteria ({len(res.candidates)} tried)",
+                   "the duty's criteria")]
+    near = res.nearest_miss
+    for i, row in enumerate(res.reasons):
+        miss = " — the nearest miss" if near is not None and near[0] == i else ""
+        out.append(Finding(Severity.FAIL, f"line sizing: {row['label']}", "verdict",
+                           float("nan"), "-", "pass or check",
+                           f"{row['reason'] or row['verdict']}{miss}", "the duty's criteria"))
+    return out
 
 
 def caution_topics(inp: SizingInputs) -> tuple:

@@ -48,7 +48,8 @@ from kit.inputs.pump_selection import (
     build_pumps,
     read,
 )
-from kit.results import Results
+from kit.results import Alternative, Results
+from kit.studies.integrity import METHODS as INTEGRITY_METHODS
 
 __all__ = [
     "ARRANGEMENTS", "PUMP_KEYS", "GRID_POINTS", "POLISH_TOL", "PumpStudy", "build_pumps",
@@ -94,6 +95,13 @@ class PumpStudy:
     tariff: float = 0.0
     currency: str = ""
     application: str = "general"
+    #: the recommended pump's suction and discharge profiles at each band condition
+    profiles: list = field(default_factory=list)
+    #: the discharge line's pressure rating and water-hammer screen (recommended pump)
+    integrity: object = None
+    #: pump name -> PumpDutyEnergy at the required duty, throttled (same volume for all)
+    duty_energy: dict = field(default_factory=dict)
+    duty_energy_text: str = ""
 
     def pump(self, name: str):
         return next(p for p in self.pumps if p.name == name)
@@ -345,9 +353,16 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
                 "falls short of the required flow at some condition of the band", "the duty"))
         findings[pump.name] = fl
         verdicts[pump.name] = worst(fl).value
+    duty_energy, duty_text = _duty_energy(system, pumps, band, q_req, hours, motors)
     order = {"pass": 0, "check": 1, "fail": 2}
-    ranked = sorted(pumps, key=lambda p: (order[verdicts[p.name]],
-                                          energy[p.name][0] if energy[p.name] else 1e30))
+
+    def _rank(p):
+        d = duty_energy.get(p.name)
+        per_volume = d.worst_kWh_per_m3 if d is not None and d.meets_every_condition else 1e30
+        return (order[verdicts[p.name]], per_volume,
+                energy[p.name][0] if energy[p.name] else 1e30)
+
+    ranked = sorted(pumps, key=_rank)
     rec = ranked[0].name if ranked and verdicts[ranked[0].name] != "fail" else None
     control, control_label = None, None
     if rec is not None and q_req is not None and hours > 0:
@@ -364,9 +379,77 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
                     drive_rating=rating)
             except HeadlineError:
                 control = None
+    profiles, screen = [], None
+    if rec is not None:
+        from kit.core.system import band_profiles
+
+        pts = points[rec]
+        profiles = band_profiles(system, [
+            (c, p.Q if p is not None and np.isfinite(p.Q) else None)
+            for c, p in zip(band.conditions, pts, strict=True)])
+        screen = _discharge_integrity(system, next(p for p in pumps if p.name == rec),
+                                      profiles, inp.integrity)
     return PumpStudy(system, Q, band, pumps, points, errors, motors, energy, control,
                      control_label, rec, verdicts, q_req, findings, npsha_grid, hours, tariff,
-                     inp.currency, application)
+                     inp.currency, application, profiles, screen, duty_energy, duty_text)
+
+
+def _duty_energy(system, pumps, band, q_req, hours, motors) -> tuple[dict, str]:
+    """Each candidate at the required flow, throttled, over every band condition
+    (:func:`kit.core.operating.energy_at_duty`): energy per volume on the same duty."""
+    from kit.core.motors import motor_efficiency
+    from kit.core.operating import energy_at_duty
+
+    if q_req is None:
+        return {}, ""
+    conds = {c.label: (lambda q, _c=c: system.curve(q, _c)) for c in band.conditions}
+    rho = max(system.state(system.T_min).rho, system.state(system.T_max).rho)
+    out, text = {}, ""
+    for pump in pumps:
+        m = motors.get(pump.name)
+        eta = _motor_eta(motor_efficiency, m.rating) if m is not None else 0.9
+        try:
+            cmp = energy_at_duty([pump], conds, q_req, control="throttle", rho=rho,
+                                 hours=hours, motor_efficiency=eta)
+        except HeadlineError:
+            continue
+        out[pump.name] = cmp.pump(pump.name)
+        text = cmp.control_text
+    return out, text
+
+
+def _discharge_integrity(system, pump, profiles, opts):
+    """Rating and surge screen of the discharge line for the recommended pump: the pump at
+    shut-off on the highest suction surface, the standing column from the destination, the
+    running pressure and velocity of the band's fastest condition, and the pump-trip
+    down-surge at the pump and at the discharge line's highest station."""
+    from kit.core.line import G
+    from kit.studies.integrity import screen_line
+
+    runs = [b for b in profiles if b.discharge is not None]
+    if not runs:
+        return None
+    fast = max(runs, key=lambda b: b.Q)
+    st = fast.discharge.stations
+    z_low = min(s.z for s in st)
+    top = max(st, key=lambda s: s.z)
+    T = system.T_max
+    state = system.state(T)
+    rho = max(system.state(system.T_min).rho, state.rho)
+    src, dst = system.source, system.destination
+    z_pump = system.pump_elevation if system.pump_elevation is not None else st[0].z
+    H0 = float(pump.head(0.0))
+    p_suction = src.pressure + rho * G * (src.level_high - z_pump)
+    L = float(sum(seg.length for seg in system.discharge.segments))
+    V = max(s.V for s in st)
+    trips = [(st[0].name, st[0].p)]
+    if top is not st[0]:
+        trips.append((top.name, top.p))
+    return screen_line(
+        "discharge line", system.discharge.segments[0].pipe, system.liquid, T, system.p_baro,
+        state.pv, length=L, velocity=V, running_pressure=max(s.p for s in st), opts=opts,
+        standing=(dst.level_high - z_low, dst.pressure),
+        shutoff=(H0, max(p_suction, 0.0), z_pump - z_low), trip_stations=trips, rho=rho)
 
 
 def _motor_eta(motor_efficiency, rating: float) -> float:
@@ -397,8 +480,7 @@ def results_of(sc, s: PumpStudy) -> Results:
         name = pump.name
         k = f"pumps[{i}]"
         rows = [row for row in s.candidate_rows() if row["pump"] == name][0]
-        r.add(f"{k}.verdict", f"{name}: verdict (0 pass, 1 check, 2 fail)",
-              {"pass": 0, "check": 1, "fail": 2}[s.verdicts[name]], "dimensionless")
+        r.add_verdict(f"{k}.verdict", f"{name}: verdict", s.verdicts[name])
         for key, label, kind in (("Q_min", "flow, lowest over band", "flow"),
                                  ("Q_max", "flow, highest over band", "flow"),
                                  ("H_max", "head, highest over band", "head"),
@@ -414,11 +496,61 @@ def results_of(sc, s: PumpStudy) -> Results:
                 r.add(f"{k}.{key}", f"{name}: {label}", v * 3.6e6 if key == "energy_kWh" else v,
                       kind)
         r.findings += list(s.findings[name])
+        d = s.duty_energy.get(name)
+        if d is not None and d.meets_every_condition:
+            r.add(f"{k}.duty_kWh_per_m3", f"{name}: energy per volume at the required flow, "
+                  "throttled, worst condition [kWh/m³]", d.worst_kWh_per_m3, "dimensionless")
     r.tables["candidates"] = [{kk: vv for kk, vv in row.items() if kk != "cost_text"}
                               for row in s.candidate_rows()]
     r.tables["operating_points"] = s.point_rows()
+    if s.duty_energy:
+        r.tables["duty_energy"] = [
+            {"pump": d.pump, "condition": row.condition, "feasible": row.feasible,
+             "H_system": row.H_system, "H_pump": row.H_pump, "valve_head": row.valve_head,
+             "input_power": row.input_power, "kWh_per_m3": row.kWh_per_m3, "note": row.note}
+            for d in s.duty_energy.values() for row in d.rows]
+        r.method("Energy on the same duty", "every candidate at the required flow under one "
+                 f"stated control: {s.duty_energy_text}; ranked by the worst energy per "
+                 "volume over the band (kit.core.operating.energy_at_duty)")
     if s.recommended:
         r.tables["recommended"] = [{"pump": s.recommended}]
+        r.selected = f"pump '{s.recommended}'"
+        for b in s.profiles:
+            r.findings += list(b.findings)
+        r.tables["line_profiles"] = [
+            {"condition": b.condition.label, "Q": b.Q if b.Q is not None else float("nan"),
+             "line": prof.line, "station": st.name, "z": st.z, "p": st.p, "p_gauge": st.p_gauge,
+             "hgl": st.hgl, "egl": st.egl, "V": st.V}
+            for b in s.profiles for prof in (b.suction, b.discharge) if prof is not None
+            for st in prof.stations]
+        low = [b.lowest for b in s.profiles if b.lowest is not None]
+        if low:
+            w = min(low, key=lambda st: st.p)
+            r.add("lines.lowest_pressure", f"lowest pressure along the lines ({w.name})", w.p,
+                  "pressure_abs")
+        scr = s.integrity
+        if scr is not None:
+            r.findings += list(scr.findings)
+            r.add("discharge.max_pressure", f"discharge line: highest pressure ({scr.governing})",
+                  scr.p_max, "pressure_abs")
+            if scr.rating is not None:
+                r.add("discharge.rated_pressure", "discharge line: maximum allowable pressure "
+                      "(gauge)", scr.rating.P_allow, "pressure_difference")
+            if scr.surge_rise is not None:
+                r.add("discharge.surge_rise", "discharge line: valve-closure surge rise",
+                      scr.surge_rise, "pressure_difference")
+            if scr.downsurge is not None:
+                r.add("discharge.trip_downsurge", "discharge line: pump-trip down-surge",
+                      scr.downsurge, "pressure_difference")
+            for name_, text_ in INTEGRITY_METHODS:
+                r.method(name_, text_)
+    for p in s.pumps:
+        if p.name != s.recommended:
+            why = ("not recommended: " + s.verdicts[p.name] + " over the band"
+                   if s.verdicts[p.name] == "fail" else
+                   "meets the duty; ranked below the recommended pump on verdict, then energy "
+                   "per volume at the required flow")
+            r.alternatives.append(Alternative(f"pump '{p.name}'", why, s.verdicts[p.name]))
     if s.control is not None:
         c = s.control
         r.add("control.throttle.energy", "throttling: energy per year",

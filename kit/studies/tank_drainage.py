@@ -122,7 +122,7 @@ from kit.inputs.tank_drainage import (
     inputs,
     wrap_errors,
 )
-from kit.results import Results
+from kit.results import Alternative, Results
 
 __all__ = [
     "TANK_SHAPES", "SURFACES", "OUTLET_TYPES", "HOT_LIQUID_T", "DrainInputs", "Case",
@@ -370,8 +370,10 @@ def results_of(s: DrainStudy, doc: dict | None = None) -> Results:
           " (outflow stops)"), end, "elevation")
     drained = float(res.volume[0] - res.volume[-1])
     r.add("drain.volume_drained", "volume drained", drained, "volume")
-    r.add("drain.total_time", "time to the target level" if res.reached else
-          "time to the level where outflow stops", res.total_time, "time")
+    note = getattr(res, "time_note", "") or ""
+    r.add("drain.total_time", ("time to the target level" if res.reached else
+          "time to the level where outflow stops") + (f" ({note})" if note else ""),
+          res.total_time, "time")
     for label, z in inp.levels:
         r.add(f"drain.time_to.{label}", f"time to level {label}", _time_to(res, z), "time")
     r.add("drain.peak_flow", "peak outflow", res.peak_flow, "flow")
@@ -382,14 +384,16 @@ def results_of(s: DrainStudy, doc: dict | None = None) -> Results:
     piped = isinstance(s.outlet, PipedOutlet)
     if piped and math.isfinite(res.lowest_pressure):
         r.add("drain.lowest_pressure", f"lowest pressure in the line ({res.lowest_station})",
-              res.lowest_pressure, "pressure")
+              res.lowest_pressure, "pressure_abs")
     r.findings += list(res.findings)
 
     c = s.compare
     if c is not None:
         cr = c.result
-        r.add("compare.total_time", f"{c.label}: time to the target level" if cr.reached else
-              f"{c.label}: time to the level where outflow stops", cr.total_time, "time")
+        cnote = getattr(cr, "time_note", "") or ""
+        r.add("compare.total_time", (f"{c.label}: time to the target level" if cr.reached else
+              f"{c.label}: time to the level where outflow stops")
+              + (f" ({cnote})" if cnote else ""), cr.total_time, "time")
         for label, z in inp.levels:
             r.add(f"compare.time_to.{label}", f"{c.label}: time to level {label}",
                   _time_to(cr, z), "time")
@@ -401,10 +405,16 @@ def results_of(s: DrainStudy, doc: dict | None = None) -> Results:
               res.total_time - cr.total_time, "time")
         if piped and math.isfinite(cr.lowest_pressure):
             r.add("compare.lowest_pressure", f"{c.label}: lowest pressure in the line "
-                  f"({cr.lowest_station})", cr.lowest_pressure, "pressure")
+                  f"({cr.lowest_station})", cr.lowest_pressure, "pressure_abs")
         # the what-if's findings, each subject naming the what-if (the vent's does not)
         r.findings += [f if c.label in f.subject else replace(f, subject=f"{f.subject} ({c.label})")
                        for f in cr.findings]
+        from kit.core.findings import worst
+
+        r.alternatives.append(Alternative(f"what-if: {c.label}", "shown for comparison",
+                                          worst(cr.findings).value if cr.findings else None,
+                                          subjects=(f"({c.label})", c.label)))
+    r.selected = f"outlet: {s.outlet.name}"
 
     # tables
     r.tables["times"] = times_rows(s)

@@ -23,13 +23,14 @@ _CHANGED = """([sel, old]) => {
 LINES = ".hl-pump-chart .scatterlayer .trace path.js-line"
 POINTS = ".hl-pump-chart .scatterlayer .trace path.point"
 _TEXT_CHANGED = """([sel, old]) => {
-  const e = document.querySelector(sel);
+  const e = [...document.querySelectorAll(sel)].at(-1);   // the narrative cell's view
   return e !== null && e.innerText !== old;
 }"""
 
 
 def _shot(page, selector, artifacts, name):
-    el = page.locator(selector).first
+    # the narrative cell's view (last): the workspace shows some of these in hidden tabs
+    el = page.locator(selector).last
     el.scroll_into_view_if_needed()
     el.screenshot(path=str(artifacts / f"{name}.png"))
 
@@ -77,7 +78,7 @@ def _run(page, open_and_run, artifacts):
     # 1. a datasheet point of the first candidate (KR-A): head at the 4th point 70 -> 75 m
     lines0 = page.evaluate(_SIG, LINES)
     points0 = page.evaluate(_SIG, POINTS)
-    table0 = page.locator(".hl-candidates").first.inner_text()
+    table0 = page.locator(".hl-candidates").last.inner_text()
     assert "KR-A end-suction 1480 rpm" in table0 and "PASS (recommended)" in table0
     cell = page.locator(".hl-pump-editor .hl-point-row").nth(3).locator(
         ".hl-point-head input")
@@ -88,13 +89,13 @@ def _run(page, open_and_run, artifacts):
     page.wait_for_function(_CHANGED, arg=[LINES, lines0], polling="raf", timeout=30_000)
     page.wait_for_function(_CHANGED, arg=[POINTS, points0], polling="raf", timeout=30_000)
     page.wait_for_function(_TEXT_CHANGED, arg=[".hl-candidates", table0], timeout=30_000)
-    table1 = page.locator(".hl-candidates").first.inner_text()
+    table1 = page.locator(".hl-candidates").last.inner_text()
     assert table1 != table0
     assert page.locator(".hl-pump-inputs .hl-error").last.inner_text() == ""
 
     # 2. the liquid's highest temperature 28 -> 60 degC: NPSH available falls
     lines1 = page.evaluate(_SIG, LINES)
-    pts_table0 = page.locator(".hl-points").first.inner_text()
+    pts_table0 = page.locator(".hl-points").last.inner_text()
     assert "60 °C" not in pts_table0
     box = page.locator(".hl-temp-max input").first
     box.fill("60 degC")
@@ -102,9 +103,9 @@ def _run(page, open_and_run, artifacts):
     page.locator(".hl-pump-chart").first.scroll_into_view_if_needed()
     page.wait_for_function(_CHANGED, arg=[LINES, lines1], polling="raf", timeout=30_000)
     page.wait_for_function(
-        "() => document.querySelector('.hl-points').innerText.includes('60 °C')",
+        "() => [...document.querySelectorAll('.hl-points')].at(-1).innerText.includes('60 °C')",
         timeout=30_000)
-    assert "= 60.00 °C" in page.locator(".hl-temp-max .hl-echo").first.inner_text()
+    assert "= 60.00 °C" in page.locator(".hl-temp-max .hl-echo").last.text_content()
     _shot(page, ".hl-pump-chart", artifacts, "pump_selection_chart_edited")
     _shot(page, ".hl-pump-inputs", artifacts, "pump_selection_inputs_edited")
 

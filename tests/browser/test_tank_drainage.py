@@ -60,7 +60,7 @@ def test_tank_drainage_notebook_in_the_browser(lab, page, open_and_run, screensh
     assert t_small > 1.5 * t_start, (t_start, t_small)
     assert "1-1/2" in dom.text(page, ".hl-outlet-picker .hl-pipe-info")
     assert dom.text(page, ".hl-app-message") == ""
-    page.locator(TIMES).scroll_into_view_if_needed()
+    page.locator(TIMES).last.scroll_into_view_if_needed()
     screenshot(page, "tank_drainage_smaller_line")
 
     # 2) round trip over 9 changes: size chosen -> redrawn level chart
@@ -91,15 +91,15 @@ def test_tank_drainage_notebook_in_the_browser(lab, page, open_and_run, screensh
                            ".textContent.includes('needs a length')")
     assert box.input_value() == "1.8 kg"
     page.wait_for_function("() => document.querySelector('.hl-app-message').textContent"
-                           ".includes('last valid')")
+                           ".includes('last accepted')")
 
-    page.locator(".hl-tank-picker").scroll_into_view_if_needed()
+    page.locator(".hl-tank-picker").last.scroll_into_view_if_needed()
     page.screenshot(path=str(artifacts / "tank_drainage_tank.png"))
-    page.locator(".hl-outlet-picker").scroll_into_view_if_needed()
+    page.locator(".hl-outlet-picker").last.scroll_into_view_if_needed()
     page.screenshot(path=str(artifacts / "tank_drainage_outlet.png"))
-    page.locator(LEVEL).scroll_into_view_if_needed()
+    page.locator(LEVEL).last.scroll_into_view_if_needed()
     page.screenshot(path=str(artifacts / "tank_drainage_charts.png"))
-    page.locator(".hl-drain-findings").scroll_into_view_if_needed()
+    page.locator(".hl-drain-findings").last.scroll_into_view_if_needed()
     page.screenshot(path=str(artifacts / "tank_drainage_findings.png"))
     screenshot(page, "tank_drainage_after")
 

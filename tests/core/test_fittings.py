@@ -67,9 +67,10 @@ def test_name_lists_are_fluids_databases():
 
 def test_bend_matches_fluids_bend_rounded_elementwise():
     row = Fitting("bend", params={"angle": 90.0, "R_D": 1.5})
-    K = fitting_K(row, RE, D4, EPS)
+    turb = RE[RE > 4000.0]   # fluids solves Colebrook at every Re; the kit: one rule with pipes
+    K = fitting_K(row, turb, D4, EPS)
     ref = [ff.bend_rounded(Di=D4, angle=90.0, bend_diameters=1.5, Re=r, roughness=EPS)
-           for r in RE]
+           for r in turb]
     np.testing.assert_allclose(K, ref, rtol=1e-10)
     # fluids defaults (smooth pipe, R/D = 5) would differ: we pass roughness and R/D.
     assert K[-1] != pytest.approx(ff.bend_rounded(Di=D4, angle=90.0, Re=1e7), rel=0.01)
@@ -140,10 +141,11 @@ def test_sudden_contraction_crane_referred_to_upstream_bore():
 def test_conical_contraction_elementwise_against_fluids():
     Dbig, d = 0.15, 0.10
     row = Fitting("contraction", params={"D2": d, "style": "conical", "angle": 30.0})
-    K = fitting_K(row, RE, Dbig, EPS)
+    turb = RE[RE > 4000.0]   # turbulent only: the kit's friction rule differs below 4000
+    K = fitting_K(row, turb, Dbig, EPS)
     # fluids gives K on the small bore at the small bore's Re; refer to D by (D/d)^4.
     ref = [ff.contraction_conical(Di1=Dbig, Di2=d, angle=30.0, Re=r * Dbig / d, roughness=EPS)
-           * (Dbig / d) ** 4 for r in RE]
+           * (Dbig / d) ** 4 for r in turb]
     np.testing.assert_allclose(K, ref, rtol=1e-10)
 
 
@@ -152,8 +154,11 @@ def test_conical_contraction_elementwise_against_fluids():
 def test_conical_diffuser_elementwise_against_fluids(angle, d):
     Dbig = 0.15
     row = Fitting("enlargement", params={"D2": Dbig, "style": "conical", "angle": angle})
-    K = fitting_K(row, RE, d, EPS)
-    ref = [ff.diffuser_conical(Di1=d, Di2=Dbig, angle=angle, Re=r, roughness=EPS) for r in RE]
+    # turbulent Re only: fluids solves Colebrook at every Re; the kit uses its own friction
+    # rule (64/Re below 2000, a blend to 4000) in fittings as in pipes (one rule).
+    turb = RE[RE > 4000.0]
+    K = fitting_K(row, turb, d, EPS)
+    ref = [ff.diffuser_conical(Di1=d, Di2=Dbig, angle=angle, Re=r, roughness=EPS) for r in turb]
     np.testing.assert_allclose(K, ref, rtol=1e-10)
     if angle == 10.0:
         # A gentle diffuser loses less than the sudden one (Borda–Carnot, computed here).
@@ -225,7 +230,8 @@ def test_row_is_hashable_and_round_trips():
     assert row.params["style"] == "straight-through" and row.params["angle"] == 180.0
     assert Fitting(**row.as_dict()) == row
     assert hash(row) == hash(Fitting(**row.as_dict()))
-    assert row.params == {"beta": 0.9, "angle": 180.0, "style": "straight-through"}
+    assert row.params == {"beta": 0.9, "angle": 180.0, "style": "straight-through",
+                          "method": "Crane"}
 
 
 def test_tee_k_may_be_negative():

@@ -6,7 +6,7 @@ import importlib
 import pytest
 
 MODULES = ["base", "fields", "display", "charts", "tables", "findings_view", "pipe_picker",
-           "fluid_picker"]
+           "fluid_picker", "workspace", "pump_editor", "pump_system"]
 
 
 @pytest.mark.parametrize("name", MODULES)

@@ -9,6 +9,7 @@ consistency with the record; head balance between two vented surfaces for a stop
 import doctest
 import html
 import math
+import re
 
 import numpy as np
 import pytest
@@ -145,11 +146,39 @@ def test_cd_source_named_and_typed_value():
 def test_bad_input_keeps_last_results_and_says_so(app):
     t = app.study.result.total_time
     app.outlet.fall.set_text("9 m")        # more fall than the 4.85 m developed length
-    assert "'outlet line fall' must be between -4.85 and 4.85 m, not 9 m" in text(app.message)
-    assert "last valid input" in app.message.value
+    # the message is beside the fall field, which is marked; the results are marked stale
+    fall = app.outlet.fall
+    assert "'outlet line fall' must be between -4.85 and 4.85 m, not 9 m" in text(fall.message)
+    assert "hl-field-error" in fall._dom_classes and "hl-error-text" in fall.message.value
+    assert fall.echo.value == ""               # no "= 9 m" echo that looks accepted
+    assert "results are for the last accepted inputs" in app.message.value
+    assert "hl-stale-banner" in app.message._dom_classes
+    assert all("hl-stale" in w._dom_classes for w in (app.level_chart, app.flow_chart,
+                                                        app.times, app.summary))
     assert app.study.result.total_time == t
     app.outlet.fall.set_text("1.25 m")
-    assert app.message.value == ""
+    assert app.message.value == "" and fall.message.value == ""
+    assert "hl-field-error" not in fall._dom_classes
+    assert not any("hl-stale" in w._dom_classes for w in (app.level_chart, app.flow_chart))
+
+
+def test_start_level_above_the_top_is_marked_at_the_start_field_in_display_units(app):
+    """Issue 12: the start level above the top is refused at its own field, in the
+    display unit; the next good edit clears the message and the stale marks."""
+    t = app.study.result.total_time
+    app.set_system("US")
+    start = app.tank.start
+    start.set_text("40 ft")
+    msg = re.sub(r"<[^>]+>", "", text(start.message))
+    assert msg.startswith("'start level in 'T-CIP-03 final-rinse tank'' must be between 0 and "
+                          ) and msg.endswith(
+        " ft, not 40 ft"), msg
+    assert "hl-field-error" in start._dom_classes and app.tank.message.value == ""
+    assert "hl-stale" in app.level_chart._dom_classes and app.study.result.total_time == t
+    start.set_text("6 ft")
+    assert start.message.value == "" and "hl-field-error" not in start._dom_classes
+    assert app.message.value == "" and "hl-stale" not in app.level_chart._dom_classes
+    assert app.study.inputs.start == pytest.approx(6 * 0.3048)   # NIST SP 811: 1 ft = 0.3048 m
 
 
 def test_length_and_fall_scale_the_route(app):

@@ -38,15 +38,19 @@ def test_add_duplicate_remove_and_count_fire_one_event_each():
     fl = FittingList([_fixed()], **COND)
     seen = events(fl)
     fl.add.click()
-    assert len(fl.rows) == 2 and len(seen) == 1 and fl.value is None  # empty K: not guessed
+    # empty K: not guessed; the row is marked incomplete and left out, the list stays valid
+    assert len(fl.rows) == 2 and fl.value == (_fixed(),) and fl.valid
+    assert "hl-row-incomplete" in fl.rows[1]._dom_classes and "left out" in \
+        fl.rows[1].message.value
+    assert seen == []                      # the value did not change: no event
     fl.rows[1].fields["K"].set_text("0.3")
-    assert fl.value[1] == fittings.Fitting("fixed_k", 1, {"K": 0.3}) and len(seen) == 2
+    assert fl.value[1] == fittings.Fitting("fixed_k", 1, {"K": 0.3}) and len(seen) == 1
     fl.rows[0].duplicate.click()
-    assert len(fl.rows) == 3 and fl.value[1] == fl.value[0] and len(seen) == 3
+    assert len(fl.rows) == 3 and fl.value[1] == fl.value[0] and len(seen) == 2
     fl.rows[1].remove.click()
-    assert len(fl.rows) == 2 and len(seen) == 4
+    assert len(fl.rows) == 2 and len(seen) == 3
     fl.rows[0].count.value = 5
-    assert fl.value[0].count == 5 and len(seen) == 5
+    assert fl.value[0].count == 5 and len(seen) == 4
 
 
 @pytest.mark.parametrize("kind", KINDS)
@@ -58,7 +62,7 @@ def test_each_kind_builds_its_parameter_fields_and_method(kind):
     assert list(row.fields) == [p.name for p in specs if not p.choices]
     assert list(row.choices) == [p.name for p in specs if p.choices]
     assert row.method.value  # the method applied is shown
-    if fl.value is not None:
+    if fl.value:
         K = fittings.fitting_K(fl.value[0], np.array([COND["Re"]]), COND["D"], COND["roughness"])
         assert f"K = {float(K[0]):.3g}<" in row.k.value
 
@@ -84,7 +88,7 @@ def test_choice_parameters_are_dropdowns_of_the_kinds_choices(kind, name):
     spec = next(p for p in fittings.FITTING_KINDS[kind].params if p.name == name)
     assert tuple(row.choices[name].options) == tuple(str(c) for c in spec.choices)
     row.choices[name].value = str(spec.choices[-1])
-    if fl.value is not None:
+    if fl.value:
         assert fl.value[0].params[name] == spec.choices[-1]
 
 
@@ -104,3 +108,33 @@ def test_set_value_and_conditions():
 def test_refuses_wrong_type():
     with pytest.raises(TypeError, match="Fitting"):
         FittingList(["a gate valve"])
+
+
+def test_k_below_zero_is_refused_at_the_row_and_cleared_by_the_next_edit():
+    fl = FittingList([_fixed()], **COND)
+    row = fl.rows[0]
+    row.fields["K"].set_text("-1")
+    assert fl.value is None and not fl.valid
+    k = row.fields["K"]
+    assert "must be between 0 and 10000, not -1" in k.message.value   # beside the K box
+    assert "hl-field-error" in row._dom_classes and "hl-field-error" in k._dom_classes
+    k.set_text("0.4")
+    assert fl.value == (_fixed(0.4),) and k.message.value == ""
+    assert "hl-field-error" not in row._dom_classes
+
+
+def test_changing_a_rows_kind_and_back_keeps_what_was_typed():
+    fl = FittingList([_fixed(0.7)], **COND)
+    row = fl.rows[0]
+    row.fields["K"].set_text("0.75")
+    other = next(k for k in KINDS if k != "fixed_k")
+    row.kind.value = other
+    row.kind.value = "fixed_k"
+    assert row.fields["K"].text == "0.75" and fl.value[0].params["K"] == 0.75
+
+
+def test_a_blank_row_added_does_not_break_the_list():
+    fl = FittingList([_fixed()], **COND)
+    fl.add.click()
+    assert fl.valid and fl.value == (_fixed(),)
+    assert "total K = 1<" in fl.total.value and "K = —" in fl.rows[1].k.value

@@ -7,6 +7,7 @@ kit.core.criteria (common practice, no source); unit conversions gpm and ft by N
 
 from __future__ import annotations
 
+import html
 import math
 from pathlib import Path
 
@@ -90,9 +91,13 @@ def test_pipe_standard_change_refills_schedules_and_recomputes(app):
     assert app.study.inputs.standard == "astm_d1785"
     assert "ASTM D1785" in app.study.result.candidates[0].pipe.label
     assert app.table.html.value != before
-    assert app.material.value == "carbon_steel"  # the roughness follows the material chosen
-    app.material.value = "pvc"
+    # the material follows the standard: a PVC standard offers PVC only (common practice,
+    # no source), and the roughness follows the material
+    assert [k for _, k in app.material.options] == ["pvc"] and app.material.value == "pvc"
     assert app.study.result.candidates[0].pipe.material == "pvc"
+    app.standard.value = "asme_b36_19m"
+    assert [k for _, k in app.material.options] == ["stainless_steel"]
+    assert app.study.result.candidates[0].pipe.material == "stainless_steel"
 
 
 def test_duty_change_fills_its_criteria_and_changes_verdicts_and_bands(app):
@@ -118,17 +123,55 @@ def test_bad_text_keeps_the_text_shows_a_message_and_keeps_results(app):
     app.flow_design.set_text("350 kg")
     assert app.flow_design.text == "350 kg"
     assert "needs a volumetric flow" in app.flow_design.error
-    assert "needs a volumetric flow" in app.message.value
+    # the message beside the field (red), the results marked stale under a banner
+    assert "needs a volumetric flow" in app.flow_design.message.value
+    assert "hl-error-text" in app.flow_design.message.value
+    assert "hl-field-error" in app.flow_design._dom_classes
+    assert "results are for the last accepted inputs" in app.message.value
+    assert all("hl-stale" in w._dom_classes for w in (app.table, app.bore_chart,
+                                                        app.profile_chart, app.findings))
     assert app.table.html.value == before and app.recomputes == n
     app.flow_design.set_text("360 gpm")
     assert app.message.value == "" and app.table.html.value != before
+    assert not any("hl-stale" in w._dom_classes for w in (app.table, app.bore_chart))
+    assert "hl-field-error" not in app.flow_design._dom_classes
 
 
-def test_a_refused_route_shows_the_kit_message(app):
-    app.points[0].chainage.set_text("9000 ft")                   # beyond the route length
-    assert "chainage of &#x27;pipe bridge&#x27;" in app.message.value  # escaped HTML
-    app.points[0].chainage.set_text("610 ft")
-    assert app.message.value == ""
+def test_a_refused_route_shows_the_kit_message_at_the_point(app):
+    chainage = app.points[0].chainage
+    chainage.set_text("9000 ft")                   # beyond the route length
+    assert "chainage of &#x27;pipe bridge&#x27;" in chainage.message.value  # escaped HTML
+    assert "hl-field-error" in chainage._dom_classes
+    assert "hl-stale" in app.bore_chart._dom_classes
+    chainage.set_text("610 ft")
+    assert app.message.value == "" and chainage.message.value == ""
+
+
+def test_design_flow_above_the_maximum_is_refused_at_the_design_flow(app):
+    """Issue 12: refused at the design-flow field (the maximum is not blamed), in gpm; the
+    next good edit clears the message and the stale marks."""
+    t0 = app.table.html.value
+    app.flow_design.set_text("500 gpm")            # the maximum is 420 gpm
+    fd, fmax = app.flow_design, app.flow_max
+    assert html.unescape(fd.message.value).count("'design flow' must be at most the maximum "
+                                                 "flow 420 gpm, not 500 gpm") == 1
+    assert "hl-field-error" in fd._dom_classes and fd.echo.value == ""
+    assert fmax.message.value == "" and "hl-field-error" not in fmax._dom_classes
+    assert "'design flow' is refused" in html.unescape(app.message.value)
+    assert "hl-stale" in app.bore_chart._dom_classes and app.table.html.value == t0
+    # the maximum edited below the design flow: the maximum is the one refused
+    app.flow_design.set_text("350 gpm")
+    assert fd.message.value == "" and app.message.value == ""
+    app.flow_max.set_text("300 gpm")
+    assert "'maximum flow' must be at least the design flow 350 gpm, not 300 gpm" in \
+        html.unescape(fmax.message.value)
+    assert fd.message.value == ""
+    app.flow_max.set_text("420 gpm")
+    assert fmax.message.value == "" and app.message.value == ""
+    assert "hl-stale" not in app.bore_chart._dom_classes
+    # below the minimum: refused at the design flow
+    app.flow_design.set_text("10 gpm")
+    assert "'design flow' must be at least the minimum flow" in html.unescape(fd.message.value)
 
 
 def test_profile_size_dropdown_changes_profile_and_findings_without_recomputing(app):
@@ -185,11 +228,11 @@ def test_batch_sizes_the_pasted_list_with_errors_per_row(app):
     rows = app.batch_table.value
     assert [r["tag"] for r in rows] == ["A-1", "A-2", "A-3"]
     assert [r["verdict"] for r in rows] == ["pass", "error", "pass"]
-    assert "A-2: flow" in rows[1]["reason"]
+    assert "tag A-2): flow" in rows[1]["reason"]
     assert "1 error" in app.batch_message.value
     app.batch_text.value = "no header here"
     app.batch_run.click()
-    assert "header row" in app.batch_message.value
+    assert "batch header (row 1)" in app.batch_message.value
 
 
 def test_figures_are_static_copies(app):
@@ -363,3 +406,16 @@ def test_save_button_writes_refuses_silent_overwrite_and_reports_errors(app, sc,
     app.flow_design.input.value = "oops"
     row.button.click()
     assert "not saved" in row.message.value and not (tmp_path / "other.toml").exists()
+
+
+def test_a_liquid_temperature_out_of_range_is_refused_in_degf_at_its_field(app):
+    """Issue 12: a °F field's range message says °F, not K (the demo diesel's property
+    table holds 266.483-310.928 K = 20-100 °F; °F = K × 9/5 − 459.67, NIST SP 811)."""
+    t = app.fluid.temperature
+    t.set_text("300 degF")
+    shown = html.unescape(t.message.value)
+    assert "'temperature' must be at least 20 °F and at most 100 °F, not 300 °F" in shown
+    assert " K" not in shown and "hl-field-error" in t._dom_classes
+    assert "hl-stale" in app.bore_chart._dom_classes
+    t.set_text("60 degF")
+    assert t.message.value == "" and "hl-stale" not in app.bore_chart._dom_classes

@@ -5,6 +5,7 @@ definitions; pipe dimensions are ASME B36.10M table values (from memory); water 
 are IAPWS-95 through the iapws library.
 """
 
+import html
 import math
 
 import numpy as np
@@ -82,7 +83,8 @@ def test_quantity_field_validator_message_shown():
     q = QuantityField("length", "pipe length", text="5 m", validator=positive)
     q.set_text("-3 m")
     assert q.value is None
-    assert "must be greater than 0 m" in q.message.value
+    assert "must be more than 0 m, not -3 m" in html.unescape(q.message.value)
+    assert "hl-field-error" in q._dom_classes
     assert q.input.value == "-3 m"
 
 
@@ -149,8 +151,13 @@ def test_pipe_picker_material_and_condition_roughness():
     assert p.value.condition == "aged"
     assert p.value.roughness > 4.5e-5
     assert "aged" in p.info.value
-    p.material.value = "pvc"
-    assert p.value.material == "pvc"
+    p.material.value = "galvanised_steel"
+    assert p.value.material == "galvanised_steel"
+    # the material follows the standard (common practice, no source): no stainless PVC pipe
+    p.standard.value = "astm_d1785"
+    assert [k for _, k in p.material.options] == ["pvc"] and p.value.material == "pvc"
+    p.mode.value = "custom"                     # a custom bore: any material
+    assert "stainless_steel" in [k for _, k in p.material.options]
 
 
 def test_pipe_picker_custom_bore_and_override():
@@ -242,7 +249,7 @@ def test_fluid_picker_refuses_frozen_glycol_and_bad_concentration():
     f = FluidPicker()
     f.family.value = "glycol solution"
     f.concentration.set_text("80 %")
-    assert f.value is None and "'concentration' must be between 0 and 0.6" in f.concentration.error
+    assert f.value is None and "'concentration' must be between 0 and 60 %, not 80 %" in f.concentration.error
     f.concentration.set_text("30 %")
     f.temperature.set_text("-40 degC")
     assert f.value is None and "freezing point" in f.temperature.error

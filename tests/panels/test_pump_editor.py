@@ -66,14 +66,19 @@ def test_bad_point_keeps_the_text_and_shows_the_kit_message():
     ed.rows[1].head.value = "-3"
     assert ed.value is None and not ed.valid and ed.doc is None
     assert ed.rows[1].head.value == "-3"
-    assert "pump.head[1]" in ed.message.value and "must be at least 0 m" in ed.error
+    # one-based point numbers as the table shows them, no zero-based key path; row marked
+    assert "'head, point 2' must be at least 0 m, not -3 m" in ed.error
+    assert "pump.head" not in ed.message.value and "hl-error-text" in ed.message.value
+    assert "hl-field-error" in ed.rows[1]._dom_classes
     ed.rows[1].head.value = "82.5 m"  # a cell may carry its own unit
     assert ed.valid and ed.message.value == ""
+    assert "hl-field-error" not in ed.rows[1]._dom_classes
     ed.rows[2].flow.value = "50"
     assert "duplicates point 2" in ed.error and ed.rows[2].flow.value == "50"
     ed.rows[2].flow.value = "100"
     ed.rows[4].efficiency.value = "130"
-    assert "pump.efficiency[4]" in ed.error
+    # an efficiency in %, not a fraction with "-"
+    assert "'efficiency [%], point 5' must be between 0 and 100 %, not 130 %" in ed.error
     ed.rows[4].efficiency.value = ""
     assert "efficiency [%], point 5" in ed.error and "fill every point" in ed.error
     ed.rows[4].efficiency.value = "abc"
@@ -82,9 +87,17 @@ def test_bad_point_keeps_the_text_and_shows_the_kit_message():
 
 def test_add_and_remove_rows():
     ed = PumpEditor(DOC)
+    fitted = ed.value
     ed.add_point.click()
-    assert len(ed.rows) == 6 and ed.value is None and "point 6" in ed.error
+    # a blank row does not break the curve: marked incomplete and left out
+    assert len(ed.rows) == 6 and ed.valid and ed.value is not None
+    assert np.array_equal(ed.value.flow, fitted.flow) and len(ed.doc["flow"]) == 5
+    assert "hl-row-incomplete" in ed.rows[5]._dom_classes
+    assert "point 6 is incomplete (no flow or head): left out" in ed.message.value
+    ed.set_point(5, flow="230")          # half typed: still left out
+    assert ed.valid and len(ed.doc["flow"]) == 5
     ed.set_point(5, flow="230", head="50", efficiency="71", npshr="5.5")
+    assert "hl-row-incomplete" not in ed.rows[5]._dom_classes and ed.message.value == ""
     assert ed.valid and ed.value.q_end == pytest.approx(230 / 3600)
     ed.rows[0].remove.click()
     assert len(ed.rows) == 5 and [r.index_label.value for r in ed.rows] == list("12345")

@@ -5,6 +5,8 @@ tests/studies/test_pump_selection.py. One reference here: NPSHa falls as the liq
 by the vapour-pressure head from IAPWS-IF97 via iapws.
 """
 
+import html
+
 import numpy as np
 import pytest
 from iapws import IAPWS97
@@ -65,7 +67,8 @@ def test_editing_a_point_moves_the_operating_points_and_the_tables(app, scenario
 def test_bad_point_keeps_last_results_and_says_so(app):
     before = [v.value for v in app.results.values]
     app.editor.rows[2].head.value = "-1"
-    assert "input refused" in app.message.value
+    assert "refused" in app.message.value and "hl-stale" in app.plot._dom_classes
+    assert "must be at least 0 m" in app.editor.message.value
     assert [v.value for v in app.results.values] == before
     app.editor.rows[2].head.value = "78"
     assert app.message.value == ""
@@ -91,13 +94,29 @@ def test_warmer_liquid_lowers_npsh_available(app):
 def test_refused_temperature_shows_the_kit_message(app):
     before = [v.value for v in app.results.values]
     app.t_max.set_text("150 degC")
-    assert "saturation temperature" in app.message.value
+    # beside the highest-temperature field, in °C (not K), the charts and tables stale
+    shown = html.unescape(app.t_max.message.value)
+    assert "'highest liquid temperature' must be below the saturation temperature" in shown
+    assert "not 150 °C" in shown and " K" not in shown
+    assert "hl-field-error" in app.t_max._dom_classes and app.t_min.message.value == ""
+    assert all("hl-stale" in w._dom_classes for w in (app.plot, app.candidates,
+                                                        app.points_table, app.findings))
+    assert "results are for the last accepted inputs" in app.message.value
     assert [v.value for v in app.results.values] == before
     app.t_max.set_text("hot")
-    assert "not a temperature" in app.message.value
+    assert "must be a number with a unit of temperature" in app.t_max.message.value
     assert app.t_max.text == "hot"
     app.t_max.set_text("28 degC")
-    assert app.message.value == ""
+    assert app.message.value == "" and app.t_max.message.value == ""
+    assert not any("hl-stale" in w._dom_classes for w in (app.plot, app.candidates))
+
+
+def test_refused_temperature_in_us_units_says_degf(app):
+    app.set_system("US")
+    app.t_min.set_text("-40 degF")            # below the triple point of water
+    shown = html.unescape(app.t_min.message.value)
+    assert "'lowest liquid temperature' must be at or above the triple point 32.02 °F" in shown
+    assert "not -40 °F" in shown and " K " not in shown
 
 
 def test_choosing_another_candidate_loads_it_in_the_editor(app):
@@ -166,7 +185,7 @@ def test_invalid_temperature_raises_the_kit_error(app):
     from kit.errors import InputError
 
     app.t_max.input.value = "35 kg"
-    with pytest.raises(InputError, match="liquid.temperature_max"):
+    with pytest.raises(InputError, match="highest liquid temperature"):
         app.to_scenario()
 
 
@@ -190,3 +209,59 @@ def test_save_button_writes_refuses_silent_overwrite_and_reports_errors(app, tmp
     row.path.value = str(tmp_path / "missing_folder" / "x.toml")
     row.button.click()
     assert "cannot save" in row.message.value
+
+
+def test_system_inputs_write_back_and_move_the_results(app, scenario):
+    """Issue 12: the pump notebook edits the required flow, the ends, the lines (pipe picker,
+    fittings, lengths, elevations), running hours, tariff and currency; each edit is written
+    at its key of the working scenario (as typed) and the study re-runs."""
+    si = app.system_inputs
+    field = {si.keys[f]: f for f in si.fields}
+    assert set(field) >= {"duty.flow", "source.level_low", "destination.level_high",
+                          "destination.pressure", "suction.segments.0.length",
+                          "discharge.segments.1.rise", "discharge.start_elevation",
+                          "operation.hours_per_year", "operation.tariff"}
+    field["duty.flow"].set_text("160 m3/h")
+    assert app.scenario.doc["duty"]["flow"] == "160 m3/h" and app.message.value == ""
+    assert app.study.required_flow == pytest.approx(160 / 3600)    # the study reads it
+    assert scenario.doc["duty"]["flow"] == "140 m3/h"               # the original untouched
+    ref = ps.compute(app.scenario)
+    assert [(v.key, v.value) for v in app.results.values] == [(v.key, v.value)
+                                                              for v in ref.values]
+    # a longer rising main: more friction, so every candidate delivers less
+    q0 = {r["pump"]: r["Q_max"] for r in app.study.candidate_rows()}
+    field["discharge.segments.1.length"].set_text("1200 m")
+    assert app.scenario.doc["discharge"]["segments"][1]["length"] == "1200 m"
+    q1 = {r["pump"]: r["Q_max"] for r in app.study.candidate_rows()}
+    assert all(q1[n] < q0[n] for n in q0)
+    # the pipe picker of a segment writes its pipe table
+    si.pipes["discharge.segments.1.pipe"].nominal.value = "10"
+    assert app.scenario.doc["discharge"]["segments"][1]["pipe"]["nominal"] == "10"
+    # a fitting row added blank is left out; the document keeps its three rows
+    si.fittings["discharge.segments.0.fittings"].add.click()
+    assert len(app.scenario.doc["discharge"]["segments"][0]["fittings"]) == 3
+    assert app.message.value == ""
+    # operation: hours, tariff and currency reach the energy cost
+    si.currency.value = "CHF"
+    field["operation.tariff"].set_text("0.2")
+    assert app.scenario.doc["operation"] == {**scenario.doc["operation"], "currency": "CHF",
+                                             "tariff": 0.2}
+    assert "CHF" in app.candidates.value and app.study.tariff == pytest.approx(0.2)
+    saved = scn.loads(scn.dumps(app.to_scenario()))
+    assert saved.doc["duty"]["flow"] == "160 m3/h"
+
+
+def test_a_refused_system_input_is_marked_at_its_field(app):
+    si = app.system_inputs
+    field = {si.keys[f]: f for f in si.fields}
+    before = [v.value for v in app.results.values]
+    high = field["destination.level_high"]
+    high.set_text("150 m")                 # below the lowest level, 153 m
+    shown = html.unescape(high.message.value)
+    assert "'destination level, highest'" in shown and "not 150 m" in shown
+    assert "hl-field-error" in high._dom_classes and "hl-stale" in app.plot._dom_classes
+    assert [v.value for v in app.results.values] == before
+    assert app.scenario.doc["destination"]["level_high"] == "156.5 m"
+    high.set_text("157 m")
+    assert high.message.value == "" and app.message.value == ""
+    assert app.scenario.doc["destination"]["level_high"] == "157 m"

@@ -35,7 +35,11 @@ def events(panel):
 
 
 def msg(panel) -> str:
-    return html.unescape(panel.message.value)
+    """Every message the picker shows: its own line, the levels' line and each field's
+    (a range refused across inputs is shown beside the field it names)."""
+    parts = [panel.message.value, getattr(panel, "levels_message", panel.message).value]
+    parts += [f.message.value for f in getattr(panel, "quantity_fields", ())]
+    return html.unescape(" ".join(p for p in parts if p))
 
 
 def demo_setup():
@@ -155,7 +159,10 @@ def test_surface_pressure_padded_and_vacuum():
     p.surface.value = "padded"
     assert p.surface_pressure.layout.display == ""
     assert p.value is None                   # 0 kPa(g) is not above atmospheric
-    assert "'padded surface pressure' must be between 100000 and 1e+08 Pa" in msg(p)
+    # in the field's gauge unit (p_baro 100 kPa here), beside the field
+    assert ("'padded surface pressure' must be between 0 kPa(g) and 99900 kPa(g), "
+            "not 0 kPa(g)") in msg(p)
+    assert "hl-field-error" in p.surface_pressure._dom_classes
     p.surface_pressure.set_text("20 kPa(g)")
     assert p.value.p_surface == pytest.approx(120000.0)       # gauge + barometric
     p.surface.value = "vacuum"
@@ -276,3 +283,16 @@ def test_parse_table_refuses_a_row_without_volume():
 def test_docstring_examples_run():
     result = doctest.testmod(tp, optionflags=doctest.ELLIPSIS)
     assert result.attempted > 0 and result.failed == 0
+
+
+def test_vent_note_says_the_vent_bore_when_one_is_given():
+    p = TankPicker()
+    assert "empty vent bore" in p.vent_note.value
+    p.vent_diameter.set_text("3 in")
+    note = html.unescape(p.vent_note.value)
+    assert "empty vent bore" not in note and "vent bore 76.2 mm," in note   # NIST SP 811
+    assert "allowable vacuum 0.25 kPa" in note
+    p.set_system("US")
+    assert "vent bore 3.00 in," in html.unescape(p.vent_note.value)
+    p.vent_diameter.set_text("")
+    assert "empty vent bore" in p.vent_note.value

@@ -1,7 +1,8 @@
 """A small stand-in study for the record tests (not the kit's line-sizing study).
 
-It reads a straight pipe from the scenario and reports its Darcy–Weisbach head loss, with the
-Swamee–Jain (1976) explicit friction factor, written here from the published equations:
+It reads a straight catalogue pipe (the first of ``sizing.sizes``) from the scenario and
+reports its Darcy–Weisbach head loss, with the Swamee–Jain (1976) explicit friction factor,
+written here from the published equations:
 
     h_f = f (L/D) V² / (2 g)                        (Darcy–Weisbach)
     f   = 0.25 / [log10(ε/(3.7 D) + 5.74 / Re^0.9)]²   (Swamee & Jain 1976, turbulent)
@@ -29,6 +30,7 @@ SCENARIO_TOML = '''
 schema = "headline-scenario/1"
 kind = "line_sizing"
 title = "Cooling water header <script>alert(1)</script>"
+note = "<script>alert(2)</script> a note that looks like markup"
 
 [project]
 name = "Marlow Creek test rig <b>bold</b>"
@@ -40,32 +42,35 @@ date = "2025-03-14"
 [display]
 system = "SI"
 
-[design]
-flow = "54 m3/h"
-
-[pipe]
-bore = "102.3 mm"
-length = "120 m"
-roughness = "0.045 mm"
-
-[liquid]
+[liquid.user]
+name = "cooling water"
+temperature = "20 degC"
 density = "998 kg/m3"
-kinematic_viscosity = "1.0 mm2/s"
+viscosity = "0.998 mPa*s"
 
-["<script>alert(2)</script>"]
-note = "a key that looks like markup"
+[sizing]
+flow_design = "54 m3/h"
+standard = "asme_b36_10m"
+schedule = "40"
+material = "carbon_steel"
+sizes = ["4"]
+
+[route]
+length = "120 m"
 '''
 
 
 def compute(scenario) -> Results:
+    from kit.core.pipes import catalogue_pipe
+
     doc = scenario.doc
-    Q = parse(doc["design"]["flow"], "flow", "design.flow")
-    D = parse(doc["pipe"]["bore"], "diameter", "pipe.bore")
-    L = parse(doc["pipe"]["length"], "length", "pipe.length")
-    eps = parse(doc["pipe"]["roughness"], "roughness", "pipe.roughness")
-    rho = parse(doc["liquid"]["density"], "density", "liquid.density")
-    nu = parse(doc["liquid"]["kinematic_viscosity"], "kinematic_viscosity",
-               "liquid.kinematic_viscosity")
+    sz, user = doc["sizing"], doc["liquid"]["user"]
+    Q = parse(sz["flow_design"], "flow", "sizing.flow_design")
+    pipe = catalogue_pipe(sz["standard"], sz["sizes"][0], sz["schedule"], sz["material"])
+    D, eps = pipe.Di, pipe.roughness
+    L = parse(doc["route"]["length"], "length", "route.length")
+    rho = parse(user["density"], "density", "liquid.user.density")
+    nu = parse(user["viscosity"], "viscosity", "liquid.user.viscosity") / rho
     V = Q / (math.pi * D**2 / 4)
     Re = V * D / nu
     f = 0.25 / math.log10(eps / (3.7 * D) + 5.74 / Re**0.9) ** 2

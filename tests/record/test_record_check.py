@@ -49,7 +49,7 @@ def _run(path, capsys, *extra):
 def test_round_trip_all_match(rec, capsys):
     code, out, _ = _run(rec, capsys)
     assert code == EXIT["match"] == 0
-    assert "VERDICT: MATCH — all 8 items agree" in out  # 6 values + 2 findings
+    assert "VERDICT: MATCH — all 10 items agree" in out  # 6 values, 2 findings, selection 2
     for key in ("design.flow", "pipe.head_loss", "finding: pipe <main> / velocity"):
         assert key in out
     assert "MISMATCH" not in out
@@ -64,7 +64,7 @@ def test_recomputation_catches_a_result_edited_with_a_reforged_hash(rec, capsys)
     assert code == EXIT["mismatch"] == 1
     line = next(x for x in out.splitlines() if x.startswith("pipe.head_loss"))
     assert line.rstrip().endswith("MISMATCH")
-    assert "VERDICT: MISMATCH — 1 of 8 items differ" in out
+    assert "VERDICT: MISMATCH — 1 of 10 items differ" in out
 
 
 def test_finding_severity_edited_is_caught(rec, capsys):
@@ -86,7 +86,7 @@ def test_result_hash_catches_an_edited_result(rec, capsys):
 
 def test_input_hash_catches_an_edited_input(rec, capsys):
     def change(d):
-        d["scenario"]["pipe"]["length"] = "60 m"
+        d["scenario"]["route"]["length"] = "60 m"
 
     code, _, err = _run(_edit(rec, change, reforge=False), capsys)
     assert code == 2 and "input hash does not match" in err
@@ -94,7 +94,7 @@ def test_input_hash_catches_an_edited_input(rec, capsys):
 
 def test_edited_input_with_reforged_hash_is_still_caught(rec, capsys):
     def change(d):
-        d["scenario"]["pipe"]["length"] = "60 m"
+        d["scenario"]["route"]["length"] = "60 m"
 
     code, _, err = _run(_edit(rec, change), capsys)
     assert code == 2 and "inputs table does not match" in err
@@ -102,7 +102,7 @@ def test_edited_input_with_reforged_hash_is_still_caught(rec, capsys):
     def change_all(d):
         from kit.record.build import flatten_inputs
 
-        d["scenario"]["pipe"]["length"] = "60 m"
+        d["scenario"]["route"]["length"] = "60 m"
         d["inputs"] = flatten_inputs(d["scenario"])
 
     code, out, _ = _run(_edit(rec, change_all), capsys)

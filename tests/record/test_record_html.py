@@ -86,7 +86,7 @@ def test_user_markup_stays_text(page_plain):
     assert "b" not in s.tags                       # "<b>bold</b>" in the project name is text
     text = "".join(s.text)
     assert "<script>alert(1)</script>" in text     # shown literally (title and input)
-    assert "<script>alert(2)</script>.note" in text  # a key that looks like markup
+    assert "<script>alert(2)</script> a note" in text  # a note that looks like markup, as text
     assert "Marlow Creek test rig <b>bold</b>" in text
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in page_plain
 
