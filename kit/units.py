@@ -69,7 +69,7 @@ __all__ = [
 ]
 
 #: Standard acceleration of gravity [m/s²] (CGPM 1901, exact).
-G_STANDARD = 9.80665
+from kit.core.constants import G as G_STANDARD  # noqa: E402  (one gravity constant)
 
 #: The longest text :func:`parse` reads [characters].
 MAX_TEXT = 64

@@ -48,7 +48,8 @@ __all__ = ["G", "Segment", "Line", "Profile", "Station", "vapour_findings", "pro
            "RE_FLOOR"]
 
 #: Standard gravity [m/s²] (CGPM 1901, exact).
-G = 9.80665
+from kit.core.constants import G  # noqa: E402  (one gravity constant)
+
 #: Re is floored here so that f·V² → 0 at zero flow rather than inf·0.
 RE_FLOOR = 1e-9
 

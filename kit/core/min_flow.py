@@ -51,7 +51,7 @@ __all__ = ["MIN_FLOW_FRACTIONS", "THERMAL_RISE_DEFAULT", "ORIFICE_LIMITS", "temp
            "thermal_min_flow", "hydraulic_min_flow", "MinimumFlow", "minimum_flow",
            "RecirculationOrifice", "recirculation_orifice"]
 
-G = 9.80665  # standard gravity [m/s²]
+from kit.core.constants import G  # noqa: E402  (one gravity constant)
 
 _NO_SOURCE = "common practice, no source"
 

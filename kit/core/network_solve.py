@@ -85,7 +85,8 @@ from kit.errors import InputError, NoSolutionError, check_range
 __all__ = ["solve", "NetworkResult", "network_findings", "METHOD", "MAX_FLIPS", "MAX_ROUNDS", "Q_SLOPE_FLOOR",
            "FINDING_LIMITS"]
 
-G = 9.80665
+from kit.core.constants import G  # noqa: E402  (one gravity constant)
+
 #: Flow [m³/s] below which a link's slope is taken at this flow (keeps the matrix regular).
 Q_SLOPE_FLOOR = 1e-7
 #: Flow [m³/s] below which Σ|Q| is taken as this in the relative convergence test, so a

@@ -54,7 +54,8 @@ __all__ = [
 ]
 
 #: Standard gravity [m/s²] (CGPM 1901).
-G = 9.80665
+from kit.core.constants import G  # noqa: E402  (one gravity constant)
+
 J_PER_KWH = 3.6e6
 
 _HI961 = ("ANSI/HI 9.6.1 Rotodynamic Pumps — Guideline for NPSH Margin (Hydraulic Institute), "

@@ -46,7 +46,7 @@ __all__ = [
     "parallel", "series",
 ]
 
-G = 9.80665  # standard gravity [m/s²]
+from kit.core.constants import G  # noqa: E402  (one gravity constant)
 
 #: Curve-fit methods: polynomial least squares (numpy) with default degrees per curve.
 #: ``efficiency`` default: 3 with 5 or more points, else 2.

@@ -57,7 +57,7 @@ __all__ = [
 ]
 
 #: Standard gravity [m/s²] (CGPM 1901).
-G = 9.80665
+from kit.core.constants import G  # noqa: E402  (one gravity constant)
 
 #: Where each formula holds without special consideration, as data.
 VALIDITY: dict[str, dict] = {

@@ -62,7 +62,6 @@ __all__ = [
     "vfd_efficiency", "control_findings", "required_heads",
 ]
 
-G = 9.80665  # standard gravity [m/s²]
 J_PER_KWH = 3.6e6
 
 STRATEGIES: dict[str, str] = {

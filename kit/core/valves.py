@@ -48,7 +48,8 @@ __all__ = [
 #: Density of water used by IEC 60534-2-1 for ρ/ρ0 in the Kv equation [kg/m³] (the value
 #: fluids.control_valve uses, water at 15.5 °C).
 RHO0 = 999.1032907570233
-_G = 9.80665
+from kit.core.constants import G as _G  # noqa: E402  (one gravity constant)
+
 #: Head [m] across a valve of Kv = 1 m³/h passing 1 m³/s: h = KV_HEAD·(Q/Kv)² with Q [m³/s],
 #: from the Kv definition Q[m³/h] = Kv·sqrt(Δp[bar]/(ρ/ρ0)) (IEC 60534-2-1), so the head is
 #: independent of the liquid's density.

@@ -197,10 +197,10 @@ def display_message(exc, system: str = "SI", kind: str | None = None,
     >>> from kit.errors import OutOfRangeError
     >>> e = OutOfRangeError("liquid.temperature_max", 320.0, "K", low=266.5, high=310.9)
     >>> display_message(e, "US", "temperature", field="highest temperature")
-    "'highest temperature' must be between 20.03 and 99.95 °F, not 116.3 °F"
+    "'highest temperature' must be more than 20.03 °F and at most 99.95 °F, not 116.3 °F"
     >>> display_message(OutOfRangeError("efficiency", 1.5, "-", low=0.0, high=1.0),
     ...                 kind="fraction")
-    "'efficiency' must be between 0 and 100 %, not 150 %"
+    "'efficiency' must be more than 0 % and at most 100 %, not 150 %"
     """
     if not isinstance(exc, HeadlineError):
         return str(exc)

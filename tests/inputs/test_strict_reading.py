@@ -9,11 +9,11 @@ from pathlib import Path
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from raising import raises_exactly
 
 from kit import results
 from kit import scenario as scn
 from kit.errors import KeyTypeError, ScenarioError, ScenarioFileError, UnknownKeyError
-from raising import raises_exactly
 
 ROOT = Path(__file__).resolve().parents[2]
 PUMP = ROOT / "scenarios" / "kestrel_ridge_booster.toml"
@@ -53,8 +53,9 @@ BAD_TEXT = [
     ("unknown key in a fitting", _edit(PUMP_TEXT, '{ kind = "valve_gate", label = "isolating valve" }',
                                        '{ kind = "valve_gate", opening = 0.5, label = "x" }'),
      UnknownKeyError, r"'discharge.segments\[0\].fittings\[1\].opening'.*is not a parameter of 'valve_gate'"),
-    ("count as text", _edit(PUMP_TEXT, "count = 2, label = \"elbows\" },\n]\n\n[[discharge.segments]]\nname = \"hillside",
-                            "count = \"two\", label = \"elbows\" },\n]\n\n[[discharge.segments]]\nname = \"hillside"),
+    ("count as text",
+     _edit(PUMP_TEXT, 'count = 2, label = "elbows" },\n]\n\n[[discharge.segments]]\nname = "hillside',
+           'count = "two", label = "elbows" },\n]\n\n[[discharge.segments]]\nname = "hillside'),
      KeyTypeError, r"'discharge.segments\[0\].fittings\[2\].count'.*must be a whole number, not 'two'"),
     ("count as a fraction", _edit(PUMP_TEXT, "R_D = 3, count = 4", "R_D = 3, count = 2.7"),
      KeyTypeError, r"fittings\[0\].count'.*must be a whole number, not 2.7"),

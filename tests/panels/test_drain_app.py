@@ -148,7 +148,7 @@ def test_bad_input_keeps_last_results_and_says_so(app):
     app.outlet.fall.set_text("9 m")        # more fall than the 4.85 m developed length
     # the message is beside the fall field, which is marked; the results are marked stale
     fall = app.outlet.fall
-    assert "'outlet line fall' must be between -4.85 and 4.85 m, not 9 m" in text(fall.message)
+    assert "'outlet line fall' must be at least -4.85 m and at most 4.85 m, not 9 m" in text(fall.message)
     assert "hl-field-error" in fall._dom_classes and "hl-error-text" in fall.message.value
     assert fall.echo.value == ""               # no "= 9 m" echo that looks accepted
     assert "results are for the last accepted inputs" in app.message.value
@@ -170,7 +170,7 @@ def test_start_level_above_the_top_is_marked_at_the_start_field_in_display_units
     start = app.tank.start
     start.set_text("40 ft")
     msg = re.sub(r"<[^>]+>", "", text(start.message))
-    assert msg.startswith("'start level in 'T-CIP-03 final-rinse tank'' must be between 0 and "
+    assert msg.startswith("'start level in 'T-CIP-03 final-rinse tank'' must be at least 0 ft and at most "
                           ) and msg.endswith(
         " ft, not 40 ft"), msg
     assert "hl-field-error" in start._dom_classes and app.tank.message.value == ""

@@ -116,7 +116,7 @@ def test_k_below_zero_is_refused_at_the_row_and_cleared_by_the_next_edit():
     row.fields["K"].set_text("-1")
     assert fl.value is None and not fl.valid
     k = row.fields["K"]
-    assert "must be between 0 and 10000, not -1" in k.message.value   # beside the K box
+    assert "must be at least 0 and at most 10000, not -1" in k.message.value   # beside the K box
     assert "hl-field-error" in row._dom_classes and "hl-field-error" in k._dom_classes
     k.set_text("0.4")
     assert fl.value == (_fixed(0.4),) and k.message.value == ""

@@ -142,7 +142,7 @@ def test_levels_of_interest_parse_and_range():
                                                                   ("low-level switch", 0.5)]
     p.levels.value = "1.9 m, above the start"
     assert p.value is None
-    assert "'level of interest 'above the start'' must be between 0.1 and 1.8 m" in msg(p)
+    assert "'level of interest 'above the start'' must be at least 0.1 m and at most 1.8 m" in msg(p)
     with pytest.raises(UnitParseError, match="levels of interest, line 1"):
         tp.parse_levels("high, switch")
 
@@ -150,7 +150,7 @@ def test_levels_of_interest_parse_and_range():
 def test_target_above_start_refused():
     p = TankPicker()
     p.target.set_text("1.9 m")
-    assert p.value is None and "'target level' must be between 0 and 1.8 m" in msg(p)
+    assert p.value is None and "'target level' must be at least 0 m and less than 1.8 m" in msg(p)
 
 
 def test_surface_pressure_padded_and_vacuum():
@@ -160,7 +160,7 @@ def test_surface_pressure_padded_and_vacuum():
     assert p.surface_pressure.layout.display == ""
     assert p.value is None                   # 0 kPa(g) is not above atmospheric
     # in the field's gauge unit (p_baro 100 kPa here), beside the field
-    assert ("'padded surface pressure' must be between 0 kPa(g) and 99900 kPa(g), "
+    assert ("'padded surface pressure' must be more than 0 kPa(g) and at most 99900 kPa(g), "
             "not 0 kPa(g)") in msg(p)
     assert "hl-field-error" in p.surface_pressure._dom_classes
     p.surface_pressure.set_text("20 kPa(g)")
@@ -178,7 +178,7 @@ def test_vent_empty_is_not_checked_and_a_bore_builds_a_vent():
     assert v.diameter == pytest.approx(3 * INCH) and v.Cd == pytest.approx(0.61)   # NIST SP 811
     assert v.allowable_vacuum == pytest.approx(250.0)
     p.vent_cd.set_text("1.4")
-    assert p.value is None and "'vent discharge coefficient Cd' must be between 0 and 1" in msg(p)
+    assert p.value is None and "'vent discharge coefficient Cd' must be more than 0 and at most 1" in msg(p)
 
 
 # ------------------------------------------------------------------ value to widgets
