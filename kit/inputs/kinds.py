@@ -16,3 +16,20 @@ __all__ = ["ROOTS"]
 
 ROOTS = {"line_sizing": LINE_SIZING, "pump_selection": PUMP_SELECTION,
          "tank_drainage": TANK_DRAINAGE}
+
+
+def checked(sc):
+    """A new scenario holding ``sc``'s document, checked against its kind's schema (strict):
+    what an app hands back for saving or for the record has passed the same rules as a file.
+
+    >>> from kit.notebook import scenario_path
+    >>> from kit import scenario as scn
+    >>> checked(scn.load(scenario_path("marlow_vale_cip_dump.toml"))).kind
+    'tank_drainage'
+    """
+    from kit.inputs.common import build_site
+    from kit.inputs.schema import check
+    from kit.scenario import Scenario
+
+    check(sc.doc, ROOTS[sc.kind], sc.source, build_site(sc.doc))
+    return Scenario(sc.doc, sc.source, text=sc.text)

@@ -57,6 +57,7 @@ from kit.core.findings import Severity, cautions_for
 from kit.core.line import Segment
 from kit.errors import InputError
 from kit.inputs import tank_drainage as td_inputs
+from kit.inputs.kinds import checked
 from kit.panels.base import (
     KIT_ERRORS,
     InvalidInput,
@@ -654,8 +655,7 @@ class DrainApp(widgets.VBox):
             doc.pop("compare", None)
         else:
             doc["compare"] = cmp
-        sc._built.clear()
-        return sc
+        return checked(sc)  # the schema's rules, as for a file
 
     def _tank_doc(self, old: dict) -> dict:
         t = self.tank

@@ -63,6 +63,7 @@ from kit.core.line import G
 from kit.core.roughness import CONDITIONS, materials
 from kit.core.sizing import Route
 from kit.inputs import line_sizing as ls_inputs
+from kit.inputs.kinds import checked
 from kit.panels.base import (
     KIT_ERRORS,
     Refusal,
@@ -734,8 +735,7 @@ class LineSizingApp(widgets.VBox):
                 doc["batch"] = {"text": self.batch_text.value}
             else:
                 doc.pop("batch", None)
-        sc._built.clear()
-        return sc
+        return checked(sc)  # the schema's rules, as for a file
 
     @staticmethod
     def _key(inp: ls.SizingInputs) -> tuple:
