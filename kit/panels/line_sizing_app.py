@@ -108,7 +108,10 @@ CANDIDATE_COLUMNS = (
     Column("head_loss", "total loss", "head"),
     Column("p_start", "p needed at start", "pressure", gauge=True),
     Column("lowest", "lowest p", "pressure", gauge=True),
-    Column("lowest_station", "at station"), Column("verdict_text", "verdict"),
+    Column("lowest_station", "at station"),
+    Column("p_allow", "rated p", "pressure_difference"),
+    Column("surge_rise", "surge rise", "pressure_difference"),
+    Column("integrity", "rating / surge"), Column("verdict_text", "verdict"),
     Column("mark", "rec."), Column("why", "why"),
 )
 
