@@ -105,7 +105,9 @@ REFUSED = """() => {
   const m = f.querySelector('.hl-error-text');
   const chart = document.querySelector('.hl-workspace .hl-bore-chart');
   const banner = document.querySelector('.hl-workspace .hl-stale-banner');
-  if (!m || !f.classList.contains('hl-field-error')) return null;
+  // the field's mark and the results' stale mark arrive in separate widget messages
+  if (!m || !f.classList.contains('hl-field-error') || !chart.classList.contains('hl-stale'))
+    return null;
   return {text: m.textContent, color: getComputedStyle(m).color,
           border: getComputedStyle(f.querySelector('input')).borderTopColor,
           stale: chart.classList.contains('hl-stale'), banner: banner.textContent};
