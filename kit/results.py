@@ -67,6 +67,7 @@ STUDIES = {
     "line_sizing": "kit.studies.line_sizing",
     "pump_selection": "kit.studies.pump_selection",
     "tank_drainage": "kit.studies.tank_drainage",
+    "network": "kit.studies.network",
 }
 
 

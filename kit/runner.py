@@ -6,8 +6,10 @@ nbclient (kernel ``python3``, widget state stored) with the scenario's path in
 :mod:`kit.record`). Into ``DIR`` go:
 
 - ``<notebook>.ipynb``  the executed notebook (with its widget state),
-- ``<notebook>.html``   its nbconvert HTML export (plain nbconvert loads the widget renderer
-  from a CDN, so widgets in *this* file need a network; the record sheet does not),
+- ``<notebook>.html``   its HTML export, readable offline (:func:`offline_html`): each widget
+  is drawn from its stored state as static HTML (values as shown, charts by plotly.js inlined
+  once), and no script comes from a network (no widget renderer, require.js, MathJax or
+  mermaid from a CDN),
 - ``<stem>.html`` and ``<stem>.json``  the record, written by the notebook's last section
   (``<stem>`` is the scenario file's stem, passed as ``HEADLINE_RECORD_STEM``).
 
@@ -31,13 +33,14 @@ from dataclasses import dataclass
 from pathlib import Path
 
 __all__ = ["NOTEBOOKS", "RunOutcome", "notebooks_dir", "notebook_for", "run_notebook",
-           "run_main"]
+           "run_main", "offline_html", "static_widgets"]
 
 #: scenario kind -> notebook file name in the notebooks folder
 NOTEBOOKS = {
     "line_sizing": "line_sizing.ipynb",
     "pump_selection": "pump_selection.ipynb",
     "tank_drainage": "tank_drainage.ipynb",
+    "network": "network_systems.ipynb",
 }
 
 
@@ -185,9 +188,7 @@ def run_notebook(notebook, scenario_path, out_dir, *, timeout: float = 600.0,
         outcome.message = f"{failure}\n(partly executed notebook written to {out_nb})"
         return outcome
     if export_html:
-        from nbconvert import HTMLExporter
-
-        body, _ = HTMLExporter().from_notebook_node(nb)
+        body = offline_html(nb)
         out_html = out / f"{nb_path.stem}.html"
         if out_html == rec_html:
             out_html = out / f"{nb_path.stem}.notebook.html"
@@ -202,6 +203,196 @@ def run_notebook(notebook, scenario_path, out_dir, *, timeout: float = 600.0,
                            "(its last section must call kit.record.save_record, which "
                            "writes into HEADLINE_RECORD_DIR when it is set)")
     return outcome
+
+
+#: The widget-view output of a cell and the notebook's stored widget state.
+_VIEW = "application/vnd.jupyter.widget-view+json"
+_STATE = "application/vnd.jupyter.widget-state+json"
+
+#: An nbconvert template (the JupyterLab one) with every script that a network would serve
+#: left out: require.js, MathJax, mermaid and the widget renderer.
+_OFFLINE_TEMPLATE = """{%- extends 'index.html.j2' -%}
+{%- block html_head_js_requirejs -%}{%- endblock html_head_js_requirejs -%}
+{%- block jupyter_widgets -%}{%- endblock jupyter_widgets -%}
+{%- block html_head_js_mathjax -%}{%- endblock html_head_js_mathjax -%}
+{%- block html_head_js_mermaidjs -%}{%- endblock html_head_js_mermaidjs -%}
+"""
+
+_STATIC_CSS = """<style>
+.hl-static-box{display:flex;flex-direction:column;gap:2px}
+.hl-static-box.hl-static-row{flex-direction:row;flex-wrap:wrap;gap:8px;align-items:flex-start}
+.hl-static-field{display:inline-flex;gap:6px;margin:1px 0}
+.hl-static-field .hl-static-label{min-width:8em;color:#333}
+.hl-static-field .hl-static-value{font-family:monospace;background:#f4f4f4;padding:0 4px}
+.hl-static-tab>h4{margin:8px 0 2px 0}
+</style>"""
+
+
+def _ref(value) -> str | None:
+    if isinstance(value, str) and value.startswith("IPY_MODEL_"):
+        return value[len("IPY_MODEL_"):]
+    return None
+
+
+class _StaticWidgets:
+    """The stored widget state of a notebook drawn as static HTML (see :func:`static_widgets`)."""
+
+    BOXES = {"VBoxModel", "BoxModel", "GridBoxModel"}
+    SELECTS = {"DropdownModel", "SelectModel", "RadioButtonsModel", "ToggleButtonsModel",
+               "SelectionSliderModel"}
+
+    def __init__(self, state: dict):
+        self.state = state
+        self.plots = 0
+
+    def _hidden(self, st: dict) -> bool:
+        lay = self.state.get(_ref(st.get("layout")) or "", {}).get("state", {})
+        return lay.get("display") == "none" or lay.get("visibility") == "hidden"
+
+    def field(self, label: str, value: str) -> str:
+        import html
+
+        lab = f'<span class="hl-static-label">{html.escape(label)}</span>' if label else ""
+        return (f'<span class="hl-static-field">{lab}<span class="hl-static-value">'
+                f"{html.escape(value)}</span></span>")
+
+    def render(self, model_id: str, depth: int = 0) -> str:
+        import html
+
+        entry = self.state.get(model_id)
+        if entry is None or depth > 60:
+            return ""
+        name = entry.get("model_name", "")
+        st = entry.get("state", {})
+        if self._hidden(st):
+            return ""
+        classes = " ".join(html.escape(str(c)) for c in st.get("_dom_classes", ()))
+        desc = str(st.get("description", "") or "")
+        kids = [_ref(c) for c in st.get("children", ()) or ()]
+        if name in self.BOXES or name == "HBoxModel":
+            row = " hl-static-row" if name == "HBoxModel" else ""
+            inner = "".join(self.render(k, depth + 1) for k in kids if k)
+            return f'<div class="hl-static-box{row} {classes}">{inner}</div>'
+        if name in ("TabModel", "AccordionModel", "StackModel"):
+            titles = list(st.get("titles", ()) or ())
+            out = []
+            for i, k in enumerate(kids):
+                title = titles[i] if i < len(titles) and titles[i] else ""
+                body = self.render(k, depth + 1) if k else ""
+                out.append(f'<div class="hl-static-tab"><h4>{html.escape(str(title))}</h4>'
+                           f"{body}</div>")
+            return f'<div class="{classes}">{"".join(out)}</div>'
+        if name in ("HTMLModel", "HTMLMathModel"):
+            return f'<div class="{classes}">{st.get("value", "")}</div>'
+        if name == "LabelModel":
+            return f'<span class="{classes}">{html.escape(str(st.get("value", "")))}</span>'
+        if name in self.SELECTS:
+            labels = list(st.get("_options_labels", ()) or ())
+            i = st.get("index")
+            value = labels[i] if isinstance(i, int) and 0 <= i < len(labels) else ""
+            return f'<div class="{classes}">{self.field(desc, str(value))}</div>'
+        if name in ("CheckboxModel", "ToggleButtonModel"):
+            return f'<div class="{classes}">{"☑" if st.get("value") else "☐"} {html.escape(desc)}</div>'
+        if name == "OutputModel":
+            return f'<div class="{classes}">{self.outputs(st.get("outputs", ()), depth)}</div>'
+        if name == "AnyModel" and "figure_layout" in st and "data" in st:
+            return self.plot(st, classes)
+        if name == "ButtonModel" or "source" in st:   # actions and the plotly.js carrier
+            return ""
+        if "value" in st and not isinstance(st.get("value"), dict | list):
+            return f'<div class="{classes}">{self.field(desc, str(st.get("value", "")))}</div>'
+        return ""
+
+    def plot(self, st: dict, classes: str) -> str:
+        import json
+
+        layout = dict(st.get("figure_layout") or {})
+        if st.get("figure_template"):
+            layout["template"] = st["figure_template"]
+        self.plots += 1
+        div = f"hl-static-plot-{self.plots}"
+        args = json.dumps([div, st.get("data") or [], layout,
+                           {**(st.get("plot_config") or {}), "responsive": True}])
+        args = args.replace("</", "<\\/")
+        lib = ""
+        if self.plots == 1:
+            from plotly.offline import get_plotlyjs
+
+            lib = f"<script>{get_plotlyjs()}</script>"
+        return (f'<div class="{classes}">{lib}<div id="{div}" class="hl-plot"></div>'
+                f"<script>Plotly.newPlot.apply(null, {args});</script></div>")
+
+    def outputs(self, outputs, depth: int) -> str:
+        import html
+
+        out = []
+        for o in outputs or ():
+            data = o.get("data", {}) if isinstance(o, dict) else {}
+            if _VIEW in data:
+                out.append(self.render(str(data[_VIEW].get("model_id", "")), depth + 1))
+            elif "text/html" in data:
+                v = data["text/html"]
+                out.append("".join(v) if isinstance(v, list) else str(v))
+            elif "image/png" in data:
+                out.append(f'<img src="data:image/png;base64,{data["image/png"]}">')
+            elif isinstance(o, dict) and o.get("output_type") == "stream":
+                text = o.get("text", "")
+                out.append(f"<pre>{html.escape(''.join(text) if isinstance(text, list) else text)}"
+                           "</pre>")
+            elif "text/plain" in data:
+                v = data["text/plain"]
+                out.append(f"<pre>{html.escape(''.join(v) if isinstance(v, list) else v)}</pre>")
+        return "".join(out)
+
+
+def static_widgets(nb):
+    """A copy of the notebook ``nb`` with each widget output replaced by static HTML drawn
+    from the stored widget state, and the widget state removed.
+
+    Values show as typed (a field as its label and value, a choice as its label), HTML
+    widgets as their HTML, hidden widgets and buttons not at all, charts (PlotView) as
+    plotly figures drawn by plotly.js carried once in the first chart's output.
+    """
+    import copy
+
+    nb = copy.deepcopy(nb)
+    widgets_meta = nb.metadata.pop("widgets", None) or {}
+    state = (widgets_meta.get(_STATE) or {}).get("state") or {}
+    drawer = _StaticWidgets(state)
+    first = True
+    for cell in nb.cells:
+        for o in cell.get("outputs", ()):
+            data = o.get("data") if isinstance(o, dict) else None
+            if not data or _VIEW not in data:
+                continue
+            body = drawer.render(str(data[_VIEW].get("model_id", "")))
+            if first and body:
+                body, first = _STATIC_CSS + body, False
+            o["data"] = {"text/html": body or "<i>(an interactive widget: open the notebook "
+                         "in JupyterLab to use it)</i>"}
+    return nb
+
+
+def offline_html(nb) -> str:
+    """The notebook ``nb`` as one HTML page that needs no network: widgets drawn statically
+    from their stored state (:func:`static_widgets`), JupyterLab's nbconvert template with
+    its network scripts left out.
+
+    Example
+    -------
+    >>> import nbformat
+    >>> page = offline_html(nbformat.v4.new_notebook(cells=[nbformat.v4.new_markdown_cell("x")]))
+    >>> "<html" in page and "https://" not in page.split("<body", 1)[0].split("<style")[0]
+    True
+    """
+    from jinja2 import DictLoader
+    from nbconvert import HTMLExporter
+
+    exporter = HTMLExporter(template_name="lab", template_file="headline_offline.html.j2",
+                            extra_loaders=[DictLoader({"headline_offline.html.j2":
+                                                       _OFFLINE_TEMPLATE})])
+    body, _ = exporter.from_notebook_node(static_widgets(nb))
+    return body
 
 
 def run_main(argv=None) -> int:

@@ -108,6 +108,7 @@ KINDS: dict[str, tuple[str, str]] = {
     "power": ("W", "power"),
     "energy": ("J", "energy"),
     "time": ("s", "time"),
+    "time_short": ("s", "time (seconds: closure times, wave travel times)"),
     "speed": ("rpm", "rotational speed"),
     "fraction": ("", "fraction (e.g. 30 % or 0.3)"),
     "dimensionless": ("", "plain number"),
@@ -122,7 +123,8 @@ DISPLAY: dict[str, dict[str, str]] = {
         "pressure_per_length": "kPa/(100 m)",
         "temperature": "degC", "temperature_difference": "delta_degC", "density": "kg/m**3",
         "viscosity": "mPa*s", "kinematic_viscosity": "mm**2/s", "power": "kW", "energy": "kWh",
-        "time": "min", "speed": "rpm", "fraction": "%", "dimensionless": "",
+        "time": "min", "time_short": "s", "speed": "rpm", "fraction": "%",
+        "dimensionless": "",
     },
     "US": {
         "length": "ft", "diameter": "in", "roughness": "in", "head": "ft", "elevation": "ft",
@@ -131,7 +133,8 @@ DISPLAY: dict[str, dict[str, str]] = {
         "pressure_per_length": "psi/(100 ft)",
         "temperature": "degF", "temperature_difference": "delta_degF", "density": "lb/ft**3",
         "viscosity": "cP", "kinematic_viscosity": "cSt", "power": "hp", "energy": "kWh",
-        "time": "min", "speed": "rpm", "fraction": "%", "dimensionless": "",
+        "time": "min", "time_short": "s", "speed": "rpm", "fraction": "%",
+        "dimensionless": "",
     },
 }
 
@@ -169,6 +172,7 @@ EXAMPLES: dict[str, tuple[str, ...]] = {
     "power": ("kW", "W", "hp"),
     "energy": ("kWh", "kJ", "MJ", "J"),
     "time": ("s", "min", "h"),
+    "time_short": ("s", "ms", "min"),
     "speed": ("rpm", "r/min", "rps", "Hz", "1/s", "rad/s"),
     "fraction": ("%", "wt%", "a plain number such as 0.3"),
     "dimensionless": ("a plain number",),

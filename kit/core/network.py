@@ -30,6 +30,7 @@ from kit.core.network_model import (
     Boundary,
     CheckValveLink,
     ControlValveLink,
+    EquipmentLink,
     Network,
     Node,
     PipeLink,
@@ -46,7 +47,7 @@ from kit.core.network_solve import (
 
 __all__ = [
     "Node", "Boundary", "PipeLink", "PumpLink", "CheckValveLink", "ControlValveLink",
-    "BalancingValveLink", "Network", "NetworkResult", "solve", "network_findings",
+    "BalancingValveLink", "EquipmentLink", "Network", "NetworkResult", "solve", "network_findings",
     "network_curve", "NetworkCurve", "balance", "Balance", "CURVE_METHODS", "CHARACTERISTICS",
     "METHOD", "MAX_FLIPS", "FINDING_LIMITS",
 ]

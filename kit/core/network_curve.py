@@ -287,7 +287,7 @@ def _cases(net, levels, states, conditions):
         for stt in states:
             for c in conditions:
                 T = getattr(stt, "T", None)
-                tl = f"{T - 273.15:.0f} °C" if T is not None else "state"
+                tl = f"{T - 273.15:.4g} °C" if T is not None else "state"
                 ll = lv if isinstance(lv, str) else "levels"
                 out.append(_Case(f"{ll} level / {tl} / {c}", lv, stt, c))
     return out

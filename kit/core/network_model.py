@@ -10,8 +10,9 @@ The model (names are ours):
   :class:`PipeLink` (an existing :class:`~kit.core.line.Segment`, optionally with a
   non-return valve), :class:`PumpLink` (a :class:`~kit.core.pump.PumpCurve` or
   :class:`~kit.core.pump.PumpSet`, non-return built in), :class:`CheckValveLink`,
-  :class:`ControlValveLink` (rated Kv, inherent characteristic, opening) and
-  :class:`BalancingValveLink` (Kv at its setting).
+  :class:`ControlValveLink` (rated Kv, inherent characteristic, opening),
+  :class:`BalancingValveLink` (Kv at its setting) and :class:`EquipmentLink` (a coil, an
+  evaporator, a heat exchanger: a fixed Kv).
 - :class:`Network` — the nodes, boundaries and links with one liquid state; constructing it
   checks names, link ends and connectivity, and refuses a network that cannot have a solution
   (a node with no path to any fixed head, no fixed head at all).
@@ -56,8 +57,8 @@ from kit.errors import InputError, OutOfRangeError, UnknownChoiceError, check_ch
 
 __all__ = [
     "P_ATM", "RHO0", "KV_HEAD", "Node", "Boundary", "PipeLink", "PumpLink", "CheckValveLink",
-    "ControlValveLink", "BalancingValveLink", "Network", "CHARACTERISTICS", "inherent_fraction",
-    "opening_for_fraction", "LINK_KINDS",
+    "ControlValveLink", "BalancingValveLink", "EquipmentLink", "Network", "CHARACTERISTICS",
+    "inherent_fraction", "opening_for_fraction", "LINK_KINDS",
 ]
 
 #: Standard atmosphere [Pa].
@@ -376,7 +377,44 @@ class BalancingValveLink(_Link):
         return float(self.kv)
 
 
-LINK_KINDS = (PipeLink, PumpLink, CheckValveLink, ControlValveLink, BalancingValveLink)
+@dataclass(frozen=True)
+class EquipmentLink(_Link):
+    """A piece of equipment passing the flow at a fixed resistance, given by its Kv: a coil,
+    an evaporator, a heat exchanger, a strainer, a meter.
+
+    Parameters
+    ----------
+    name, from_node, to_node : str
+        The link's name and its ends; positive flow runs from → to [-]
+    kv : float
+        Flow coefficient [m³/h at 1 bar]; from a rated pressure drop Δp at a rated flow Q,
+        Kv = Q[m³/h]·sqrt(ρ/ρ0 / Δp[bar]) (IEC 60534-2-1 definition) [m³/h]
+    diameter : float or None
+        Connection bore, for the velocity shown [m]
+
+    Examples
+    --------
+    >>> EquipmentLink("AHU-1", "a", "b", kv=15.0).kv_open
+    15.0
+    """
+
+    kv: float = 0.0
+    diameter: float | None = None
+
+    kind = "equipment"
+
+    def __post_init__(self):
+        self._check_ends()
+        _kv(f"Kv of equipment '{self.name}'", self.kv)
+        _bore(f"diameter of equipment '{self.name}'", self.diameter)
+
+    @property
+    def kv_open(self) -> float:
+        return float(self.kv)
+
+
+LINK_KINDS = (PipeLink, PumpLink, CheckValveLink, ControlValveLink, BalancingValveLink,
+              EquipmentLink)
 
 
 class Network:

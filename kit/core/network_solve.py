@@ -83,6 +83,7 @@ from kit.core.network_model import (
 from kit.errors import InputError, NoSolutionError, check_range
 
 __all__ = ["solve", "NetworkResult", "network_findings", "METHOD", "MAX_FLIPS", "MAX_ROUNDS", "Q_SLOPE_FLOOR",
+           "Q_ZERO",
            "FINDING_LIMITS"]
 
 from kit.core.constants import G  # noqa: E402  (one gravity constant)
@@ -94,6 +95,9 @@ Q_SLOPE_FLOOR = 1e-7
 Q_REF = 1e-6
 #: A link may change between open and closed at most this many times in one solve.
 MAX_FLIPS = 4
+#: Flow [m³/s] at or below which a link's flow counts as none in the findings (with 1e-9 of
+#: the largest flow): round-off must not read as reverse flow.
+Q_ZERO = 1e-12
 #: Status rounds (solve, re-test non-return links) at most.
 MAX_ROUNDS = 30
 _REL_STEP = 1e-6
@@ -796,22 +800,30 @@ def network_findings(res: NetworkResult, duty="general_transfer",
         "vapour margin", margin_head, "m", low=0.0, high=100.0, low_inclusive=True)
     out: list[Finding] = []
     rho = res.state.rho
+    # flows within round-off of zero (a dead leg, an expansion-vessel line) are no flow: no
+    # velocity class applies and their sign means nothing (the solver's closing tolerance)
+    q_eps = max(Q_ZERO, 1e-9 * float(np.abs(res.Q).max(initial=0.0)))
     for i, k in enumerate(net.links):
         subj = f"link '{k.name}'"
         Q = float(res.Q[i])
-        if isinstance(k, PipeLink):
+        still = abs(Q) <= q_eps
+        if isinstance(k, PipeLink) and still and res.is_open[i]:
+            out.append(Finding(Severity.PASS, subj, "flow", Q, "m³/s", "no flow",
+                               "no flow through this pipe (a dead leg or a vessel line): no "
+                               "velocity class applies", "common practice, no source"))
+        elif isinstance(k, PipeLink):
             key = duty.get(k.name, "general_transfer") if isinstance(duty, dict) else duty
             dc = DUTY_CLASSES[key]
             dp = rho * G * abs(float(res.head_loss[i])) / k.segment.length
             out += dc.check(subj, abs(float(res.velocity[i])), dp)
-            out += transition_findings(subj, [res.reynolds[i]]) if Q != 0 else []
+            out += transition_findings(subj, [res.reynolds[i]])
         if not res.is_open[i]:
             what = "pump held shut by its non-return valve" if k.kind == "pump" else \
                 "non-return valve held shut by the heads around it"
             out.append(Finding(Severity.CHECK, subj, "flow", 0.0, "m³/s", "> 0 m³/s",
                                what + ("; a pump must not run dead-headed" if k.kind == "pump"
                                        else ""), "common practice, no source"))
-        elif Q < 0 and not k.check:
+        elif Q < -q_eps and not k.check:
             out.append(Finding(Severity.CHECK, subj, "flow", Q, "m³/s", ">= 0 m³/s",
                                f"flow runs against the drawn direction ('{k.to_node}' → "
                                f"'{k.from_node}')", "common practice, no source"))

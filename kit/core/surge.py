@@ -522,8 +522,9 @@ class SurgeScreen:
     downsurge : float
         Pump-trip drop rho a V [Pa].
     p_min : dict
-        Station name → lowest absolute pressure after the trip, floored at nothing (it may
-        be below the vapour pressure, which is the point of the screen) [Pa].
+        Station name → running pressure less the down-surge, floored at nothing (it may be
+        below the vapour pressure, which is the point of the screen) [Pa]. The findings show
+        the vapour pressure where this figure is below it (the column parts there).
     findings : list of Finding
     """
 
@@ -537,7 +538,7 @@ class SurgeScreen:
 def surge_screen(subject: str, rho: float, a: float, L: float, V: float,
                  running_pressure: float, rated_pressure: float | None = None,
                  closure_time: float | None = None, trip_stations=(), pv: float | None = None,
-                 p_atm: float = P_ATM) -> SurgeScreen:
+                 p_atm: float = P_ATM, event: str = "pump trip") -> SurgeScreen:
     """Water-hammer screen of one line: valve-closure rise and pump-trip down-surge.
 
     - Closure (when ``closure_time`` is given): :func:`closure_surge` for a full stop from
@@ -575,6 +576,9 @@ def surge_screen(subject: str, rho: float, a: float, L: float, V: float,
         Vapour pressure, needed when ``trip_stations`` is given [Pa]
     p_atm : float
         Atmospheric pressure [Pa]
+    event : str
+        The sudden stop that makes the down-surge, in words for the findings: "pump trip"
+        (default), or e.g. "outlet valve closure upstream of the crest" for a gravity line [-]
 
     Returns
     -------
@@ -594,6 +598,8 @@ def surge_screen(subject: str, rho: float, a: float, L: float, V: float,
     V = check_range("velocity", V, "m/s", low=0.0, low_inclusive=True)
     p_run = check_range("running pressure", running_pressure, "Pa", low=0.0)
     p_atm = check_range("atmospheric pressure", p_atm, "Pa", low=0.0)
+    if not isinstance(event, str) or not event.strip():
+        raise InputError("surge event", event, "must be a non-empty text naming the sudden stop")
     findings: list[Finding] = []
     closure = p_peak = None
     if closure_time is not None:
@@ -632,21 +638,29 @@ def surge_screen(subject: str, rho: float, a: float, L: float, V: float,
             p = check_range(f"running pressure at '{name}'", p, "Pa", low=0.0)
             low = p - drop
             p_min[name] = low
+            shown = low
             if low <= pv:
+                # a liquid cannot fall below its vapour pressure: the column parts there, and
+                # the finding shows that pressure with the unbounded figure in words
+                shown = pv
                 sev, rule = Severity.FAIL, (
-                    f"pump trip: the down-surge takes '{name}' to the vapour pressure (column "
-                    f"separation risk; rejoining columns can burst the pipe); "
+                    f"{event}: the down-surge rho·a·V = {drop:.4g} Pa takes '{name}' "
+                    f"({p:.4g} Pa abs running) to the vapour pressure (the unbounded drop "
+                    f"would give {low:.4g} Pa abs, impossible: the column parts; column "
+                    f"separation risk, rejoining columns can burst the pipe); "
                     f"{TRANSIENT_ANALYSIS_REQUIRED}")
             elif low < p_atm:
                 sev, rule = Severity.CHECK, (
-                    f"pump trip: the down-surge takes '{name}' below atmospheric (air ingress "
+                    f"{event}: the down-surge takes '{name}' below atmospheric (air ingress "
                     f"at air valves, collapse of thin walls); {TRANSIENT_ANALYSIS_REQUIRED}")
             else:
                 sev, rule = Severity.PASS, (
-                    f"pump trip: '{name}' stays above atmospheric on this screen only (not a "
+                    f"{event}: '{name}' stays above atmospheric on this screen only (not a "
                     "transient analysis)")
-            findings.append(Finding(sev, subject, f"pump-trip lowest pressure at '{name}' (absolute)",
-                                    low, "Pa", f"> {pv:.6g} Pa (vapour pressure)", rule, src,
+            what = (f"pump-trip lowest pressure at '{name}' (absolute)" if event == "pump trip"
+                    else f"lowest pressure at '{name}' after the {event} (absolute)")
+            findings.append(Finding(sev, subject, what,
+                                    shown, "Pa", f"> {pv:.6g} Pa (vapour pressure)", rule, src,
                                     low=pv))
     return SurgeScreen(closure=closure, p_peak=p_peak, downsurge=drop, p_min=p_min,
                        findings=findings)

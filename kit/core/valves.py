@@ -42,7 +42,7 @@ from kit.errors import InputError, check_choice, check_range
 __all__ = [
     "RHO0", "KV_HEAD", "CHARACTERISTICS", "VALVE_LIMITS", "inherent_fraction",
     "opening_for_fraction", "kv_to_cv", "cv_to_kv", "kv_required", "ValveCase", "CaseSizing",
-    "ValveSizing", "size_control_valve", "valve_head_loss",
+    "ValveSizing", "size_control_valve", "valve_head_loss", "PC_WATER", "critical_pressure",
 ]
 
 #: Density of water used by IEC 60534-2-1 for ρ/ρ0 in the Kv equation [kg/m³] (the value
@@ -63,6 +63,46 @@ CHARACTERISTICS = {
 }
 _CHAR_SOURCE = ("inherent characteristics as defined in IEC 60534-1 / ISA-75.11.01 "
                 "(ideal forms, from memory); the maker's measured curve governs")
+
+
+#: Critical pressure of water [Pa]: 22.064 MPa (IAPWS-95; from memory).
+PC_WATER = 22.064e6
+
+
+def critical_pressure(liquid) -> tuple[float, str]:
+    """Critical pressure of a liquid for the FF factor of IEC 60534-2-1, and its source.
+
+    FF = 0.96 − 0.28·sqrt(pv/pc) (IEC 60534-2-1) needs the liquid's critical pressure. A pure
+    catalogue liquid with an equation of state (backend ``HEOS::…``) gives its own (CoolProp);
+    aqueous solutions and user liquids take water's, :data:`PC_WATER` (stated in the source:
+    FF moves little with pc where pv ≪ pc).
+
+    Parameters
+    ----------
+    liquid : Liquid or UserLiquid
+        The liquid [-]
+
+    Returns
+    -------
+    (pc, source) : (float, str)
+        Critical pressure [Pa] and where it came from [-]
+
+    Examples
+    --------
+    >>> from kit.core.liquids import make_liquid
+    >>> round(critical_pressure(make_liquid("water"))[0] / 1e6, 3)
+    22.064
+    """
+    spec = getattr(liquid, "spec", None)
+    backend = getattr(spec, "backend", "") or ""
+    if backend.startswith("HEOS::"):
+        from CoolProp.CoolProp import PropsSI
+
+        fluid = backend.split("::", 1)[1]
+        pc = float(PropsSI("pcrit", fluid))
+        return pc, f"critical pressure of {fluid} (CoolProp HEOS)"
+    return PC_WATER, ("critical pressure of water (IAPWS-95, from memory), taken for an aqueous "
+                      "or user liquid")
 
 
 def inherent_fraction(opening, characteristic: str, rangeability: float = 50.0):

@@ -34,7 +34,7 @@ __all__ = [
 ]
 
 SCHEMA_ID = "headline-scenario/1"
-KINDS = ("line_sizing", "pump_selection", "tank_drainage")
+KINDS = ("line_sizing", "pump_selection", "tank_drainage", "network")
 
 
 def _choices(fn):

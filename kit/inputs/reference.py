@@ -18,7 +18,8 @@ __all__ = ["reference_text", "write_all"]
 
 _TITLES = {"line_sizing": "Scenario keys: line_sizing",
            "pump_selection": "Scenario keys: pump_selection",
-           "tank_drainage": "Scenario keys: tank_drainage"}
+           "tank_drainage": "Scenario keys: tank_drainage",
+           "network": "Scenario keys: network"}
 
 _PREAMBLE = (
     "Generated from `kit/inputs/*_schema.py` by `python -m kit.inputs.reference`; do not edit.\n"

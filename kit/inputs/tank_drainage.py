@@ -344,6 +344,8 @@ class DrainInputs:
     outlet: object
     compare_outlet: object | None
     compare_label: str | None
+    #: the ``[integrity]`` table (pressure rating and water-hammer screen of an outlet line)
+    integrity: scn.IntegrityOptions = scn.IntegrityOptions()
 
 
 def _level(sec, name, tank, key_prefix="drain.") -> float:
@@ -450,14 +452,34 @@ def inputs(sc) -> DrainInputs:
         label = doc["compare"].get("label") or (
             f"NPS {doc['compare']['nominal']}" if isinstance(cmp, PipedOutlet)
             else f"orifice {cmp.diameter * 1e3:.4g} mm")
+    integrity = scn.build_integrity(doc)
+    _check_allowance(integrity, outlet)
     return DrainInputs(tank, liquid, state, p_atm, surface, p_surface, vent, start, target,
-                       levels, outlet, cmp, label)
+                       levels, outlet, cmp, label, integrity)
+
+
+def _check_allowance(opts, outlet) -> None:
+    """A corrosion allowance must leave wall in every metal segment of an outlet line."""
+    from kit.core.rating import ELASTIC_FOR_ROUGHNESS
+
+    c = opts.corrosion_allowance
+    if not c or not isinstance(outlet, PipedOutlet):
+        return
+    for seg in getattr(outlet.line, "segments", ()):
+        pipe = seg.pipe
+        metal = ELASTIC_FOR_ROUGHNESS.get(pipe.material) not in (None, "pvc", "hdpe")
+        if metal and pipe.wall is not None and c >= pipe.wall:
+            raise ScenarioError("integrity.corrosion_allowance",
+                                f"must be less than the wall of segment '{seg.name}' "
+                                f"({pipe.label}, {pipe.wall * 1e3:.4g} mm), not "
+                                f"{c * 1e3:.4g} mm")
 
 
 def drain_inputs(tank, liquid, T: float, outlet, *, start: float, target: float,
                  levels=(), p_atm: float = 101325.0, surface: str = "vented",
                  p_surface: float | None = None, vent: Vent | None = None,
-                 compare_outlet=None, compare_label: str | None = None) -> DrainInputs:
+                 compare_outlet=None, compare_label: str | None = None,
+                 integrity: scn.IntegrityOptions | None = None) -> DrainInputs:
     """:class:`DrainInputs` from core objects (SI), checked as :func:`inputs` checks a scenario.
 
     The notebook's app builds its inputs here from the panels' values; a bad value raises
@@ -484,6 +506,9 @@ def drain_inputs(tank, liquid, T: float, outlet, *, start: float, target: float,
     vent : Vent, optional
     compare_outlet : OrificeOutlet or PipedOutlet, optional
         The what-if outlet; ``compare_label`` names it.
+    integrity : IntegrityOptions, optional
+        The ``[integrity]`` options of the outlet line's rating and surge screen
+        (:func:`kit.inputs.common.build_integrity`); default: the kit's stated defaults.
 
     Returns
     -------
@@ -527,8 +552,13 @@ def drain_inputs(tank, liquid, T: float, outlet, *, start: float, target: float,
     state = liquid.state(T, max(p_surface, 1.0))
     if compare_outlet is not None and not compare_label:
         compare_label = "what-if"
+    if integrity is None:
+        integrity = scn.IntegrityOptions()
+    elif not isinstance(integrity, scn.IntegrityOptions):
+        raise InputError("integrity options", type(integrity).__name__,
+                         "must be an IntegrityOptions (kit.inputs.common.build_integrity)")
     return DrainInputs(tank, liquid, state, p_atm, surface, p_surface, vent, start, target,
-                       tuple(out), outlet, compare_outlet, compare_label)
+                       tuple(out), outlet, compare_outlet, compare_label, integrity)
 
 
 

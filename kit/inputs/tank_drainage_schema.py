@@ -1,5 +1,7 @@
 """Schema of a ``tank_drainage`` scenario: the tank, the drain levels and surface, the outlet
-(an orifice or a line), and an optional what-if outlet size.
+(an orifice or a line), an optional what-if outlet size, and the optional ``[integrity]``
+table shared with the other kinds (:data:`kit.inputs.common.INTEGRITY`: the outlet line's
+pressure rating and water-hammer screen).
 
 >>> sorted(ROOT.entry("outlet").variants)
 ['line', 'orifice']
@@ -8,7 +10,7 @@
 from __future__ import annotations
 
 from kit.errors import KeyTypeError, ScenarioError
-from kit.inputs.common import DISPLAY, LINE, LIQUID_ONE_T, PROJECT, SITE, TOP_KEYS
+from kit.inputs.common import DISPLAY, INTEGRITY, LINE, LIQUID_ONE_T, PROJECT, SITE, TOP_KEYS
 from kit.inputs.schema import Key, Table, _table
 
 __all__ = ["ROOT", "TANK", "DRAIN", "OUTLET", "COMPARE", "HEAD", "TANK_SHAPE_KEYS",
@@ -211,5 +213,5 @@ COMPARE = Table("compare", "a what-if: the same drain with a second outlet size"
 
 ROOT = Table("tank_drainage", "A tank_drainage scenario: the time to drain a tank to a level "
              "through an orifice or an outlet line.", keys=TOP_KEYS + (
-    PROJECT, SITE, DISPLAY, LIQUID_ONE_T, TANK, DRAIN, OUTLET, COMPARE,
+    PROJECT, SITE, DISPLAY, LIQUID_ONE_T, TANK, DRAIN, OUTLET, COMPARE, INTEGRITY,
 ))

@@ -72,7 +72,7 @@ ABS_FLOOR: dict[str, float] = {
     "pressure": 1e-3, "pressure_difference": 1e-3, "pressure_per_length": 1e-6,
     "temperature": 1e-6, "temperature_difference": 1e-6, "density": 1e-6,
     "viscosity": 1e-12, "kinematic_viscosity": 1e-15, "power": 1e-3, "energy": 1e-3,
-    "time": 1e-6, "speed": 1e-6, "fraction": 1e-9, "dimensionless": 1e-9,
+    "time": 1e-6, "time_short": 1e-6, "speed": 1e-6, "fraction": 1e-9, "dimensionless": 1e-9,
 }
 #: Largest record file read [bytes]; a line list of 100,000 rows carried inline fits.
 MAX_RECORD_BYTES = 64_000_000

@@ -83,7 +83,10 @@ def _not_screened(subject: str, what: str, why: str) -> Finding:
 def screen_line(subject: str, pipe, liquid, T: float, p_atm: float, pv: float | None, *,
                 length: float, velocity: float, running_pressure: float, opts,
                 standing: tuple | None = None, shutoff: tuple | None = None,
-                trip_stations=(), rho: float | None = None) -> IntegrityScreen:
+                trip_stations=(), rho: float | None = None, other_cases: dict | None = None,
+                running_label: str = "running, highest station",
+                standing_label: str | None = None, closure_note: bool = True,
+                downsurge_event: str = "pump trip") -> IntegrityScreen:
     """Rate one line and screen it for water hammer.
 
     Parameters
@@ -118,6 +121,20 @@ def screen_line(subject: str, pipe, liquid, T: float, p_atm: float, pv: float | 
         (station, running absolute pressure [Pa]) for the pump-trip down-surge
     rho : float, optional
         Density, the highest of the case [kg/m³]
+    other_cases : dict, optional
+        More no-flow cases, name → absolute pressure [Pa] (a receiver's column on a gravity
+        line, a relief setting) [Pa]
+    running_label : str
+        Name of the running case ("draining, highest flow" for a gravity line) [-]
+    standing_label : str, optional
+        Name of the standing-column case in place of "standing column, pump stopped" (a
+        gravity line has no pump) [-]
+    closure_note : bool
+        Add the CHECK that no closure time was given (a study screening several segments of
+        one line says it once) [-]
+    downsurge_event : str
+        The sudden stop behind the down-surge at ``trip_stations``, in words ("pump trip", or
+        "outlet valve closure upstream of the crest") [-]
 
     Returns
     -------
@@ -130,20 +147,23 @@ def screen_line(subject: str, pipe, liquid, T: float, p_atm: float, pv: float | 
     findings: list[Finding] = []
     state = liquid.state(T, max(running_pressure, p_atm))
     rho = rho if rho is not None else state.rho
+    a = None
     try:
         K = bulk_modulus(liquid, T, max(running_pressure, p_atm), K_user=opts.bulk_modulus)
-        wave = sg.pipe_wave_speed(pipe, K.K, rho, anchoring=opts.anchoring)
-        a = wave.a
     except HeadlineError as exc:
-        a = None
         findings.append(_not_screened(subject, "water-hammer screen",
                                       f"{exc} (give [integrity] bulk_modulus)"))
+    else:
+        try:
+            a = sg.pipe_wave_speed(pipe, K.K, rho, anchoring=opts.anchoring).a
+        except HeadlineError as exc:
+            findings.append(_not_screened(subject, "water-hammer screen", str(exc)))
     closure = None
     if a is not None:
         tc = opts.closure_time if opts.closure_time is not None else \
             sg.critical_closure_time(length, a)
         closure = sg.closure_surge(rho, a, length, velocity, tc)
-    other = {"running, highest station": running_pressure}
+    other = {running_label: running_pressure, **(other_cases or {})}
     H0, ps, dz = shutoff if shutoff is not None else (0.0, p_atm, 0.0)
     cases = rt.highest_pressure(
         rho, H0, ps, dz,
@@ -151,14 +171,22 @@ def screen_line(subject: str, pipe, liquid, T: float, p_atm: float, pv: float | 
         standing_surface_pressure=p_atm if standing is None else standing[1],
         surge_rise=0.0 if closure is None else closure.dp,
         running_pressure=running_pressure, other_cases=other)
+    if standing_label is not None and "standing column, pump stopped" in cases.cases:
+        cases = rt.PressureCases({standing_label if k == "standing column, pump stopped" else k:
+                                  v for k, v in cases.cases.items()}, "", 0.0)
     if shutoff is None:  # no pump on this line: the shut-off case is meaningless
         cases = rt.PressureCases({k: v for k, v in cases.cases.items() if k != "pump at shut-off"},
                                  "", 0.0)
+    if not cases.governing:
+        gov = max(cases.cases, key=cases.cases.__getitem__)
+        cases = rt.PressureCases(cases.cases, gov, cases.cases[gov])
         gov = max(cases.cases, key=cases.cases.__getitem__)
         cases = rt.PressureCases(cases.cases, gov, cases.cases[gov])
     rating = None
     try:
-        rating = rt.pipe_rating(pipe, max(cases.gauge(p_atm), 0.0), T, grade=opts.grade,
+        # the allowable pressure does not depend on the design pressure: a line never above
+        # atmospheric is rated at a nominal 1 Pa (gauge) and passes with its margin shown
+        rating = rt.pipe_rating(pipe, max(cases.gauge(p_atm), 1.0), T, grade=opts.grade,
                                 compound=opts.compound, joint=opts.joint,
                                 corrosion_allowance=opts.corrosion_allowance)
         findings += rt.rating_findings(subject, cases, rating, p_atm)
@@ -176,11 +204,11 @@ def screen_line(subject: str, pipe, liquid, T: float, p_atm: float, pv: float | 
             rated_pressure=None if rating is None else rating.P_allow,
             closure_time=opts.closure_time if opts.closure_time is not None else
             sg.critical_closure_time(length, a),
-            trip_stations=list(trip_stations), pv=pv, p_atm=p_atm)
+            trip_stations=list(trip_stations), pv=pv, p_atm=p_atm, event=downsurge_event)
         findings += list(screen.findings)
         if trip_stations:
             downsurge = screen.downsurge
-        if opts.closure_time is None:
+        if opts.closure_time is None and closure_note:
             findings.append(Finding(
                 Severity.CHECK, subject, "valve closure time", 0.0, "s",
                 "given in [integrity] closure_time",

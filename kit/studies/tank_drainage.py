@@ -41,6 +41,9 @@ the atmospheric pressure, ``[liquid]`` the liquid at one ``temperature``)::
     [compare]  label = "NPS 3 dump line"        (optional what-if, a second outlet size)
                outlet_diameter = "65 mm", Cd = 0.61      (orifice outlet)
                nominal = "3", schedule = "40S"           (line outlet: every catalogue pipe)
+    [integrity] closure_time = "0.5 s", grade, compound, joint, corrosion_allowance,
+               flange_class, anchoring, bulk_modulus   (optional; the table the other kinds
+                                                share, :data:`kit.inputs.common.INTEGRITY`)
 
 Reported values (keys of :class:`kit.results.Results`; SI)::
 
@@ -52,10 +55,16 @@ Reported values (keys of :class:`kit.results.Results`; SI)::
     drain.lowest_pressure [pressure] (line outlets)
     compare.total_time, compare.time_to.<label>, compare.peak_flow, compare.peak_velocity,
     compare.time_saved, compare.lowest_pressure (line)
+    integrity.max_pressure [pressure_abs] (its case in the label), integrity.rated_pressure,
+    integrity.margin (gauge, the segment of least margin), integrity.wave_speed,
+    integrity.surge_rise, integrity.critical_closure_time [s], integrity.crest_lowest_pressure
+    (line outlets: :func:`integrity_of`; an orifice outlet gets a method note instead)
 
 Tables: ``times`` (one row per level: start, levels of interest, target) and ``history``
-(about 50 rows of time, level, volume, flow, velocity picked from the computed grid), and
-``compare_history`` with a ``[compare]``.
+(about 50 rows of time, level, volume, flow, velocity picked from the computed grid),
+``compare_history`` with a ``[compare]``, and ``integrity`` for a line outlet (one row per
+segment: design pressure and its case, rated pressure, margin, wave speed, Joukowsky rise,
+2L/a, closure rise; :func:`integrity_rows`).
 
 Example
 -------
@@ -123,11 +132,13 @@ from kit.inputs.tank_drainage import (
     wrap_errors,
 )
 from kit.results import Alternative, Results
+from kit.studies.integrity import METHODS as INTEGRITY_METHODS
 
 __all__ = [
     "TANK_SHAPES", "SURFACES", "OUTLET_TYPES", "HOT_LIQUID_T", "DrainInputs", "Case",
     "DrainStudy", "LineRoute", "build_tank", "build_outlet", "inputs", "study", "compute",
     "drain_inputs", "resize_pipe", "results_of", "times_rows", "caution_topics",
+    "SegmentScreen", "OutletIntegrity", "integrity_of", "integrity_rows", "ORIFICE_NOTE",
 ]
 
 #: Above this temperature [K] the study adds a scald caution (45 °C; common practice, no
@@ -293,6 +304,270 @@ def resize_pipe(pipe, size):
                              roughness=pipe.roughness_override)
 
 
+# ------------------------------------------------------- rating and water-hammer screen
+
+#: The note reported for an orifice outlet: there is no outlet line to rate or to screen.
+ORIFICE_NOTE = ("not applicable: the outlet is an orifice in the tank, with no outlet line to "
+                "rate or to screen for water hammer (the tank shell and its nozzle are rated "
+                "by the vessel's own code, outside this study); no figures are given")
+
+_RUNNING = "draining, highest flow"
+_STANDING = "standing column, tank full to its top, outlet valve closed"
+_RECEIVER = "receiver column, outlet valve closed"
+_CREST_EVENT = "outlet valve closure upstream of the crest"
+
+#: How the outlet line is screened (the record's method line).
+TANK_INTEGRITY_METHOD = (
+    "Outlet line, per segment: the highest of (a) the standing column with the tank full to "
+    "its top (the level datum's top, h_max) and the outlet valve closed, p_surface + rho g "
+    "(h_max - z_low), at the segment's lowest point; (b) a submerged receiver's column on the "
+    "closed line; (c) the running pressure at the drain's highest flow (energy equation from "
+    "the tank surface); (d) that running pressure plus the closure rise of stopping the "
+    "segment's initial velocity (Joukowsky rho a V at or below 2L/a, Michaud 2 rho L V / t_c "
+    "above it), the closing valve taken at the segment's downstream end with the whole line "
+    "from the tank upstream of it (L = developed length from the tank to that end, a = the "
+    "segment's Korteweg wave speed; changes of pipe between segments are not modelled). One "
+    "temperature, so one density. Siphon crest (an inner station above the lowest drain "
+    "level): running pressure less rho a V over the drain, against vapour pressure (column "
+    "separation), for a valve closing upstream of it. Vacuum: long-tube buckling where any "
+    "station is below atmospheric at any time of the drain (Timoshenko & Gere 1961).")
+
+
+@dataclass(frozen=True)
+class SegmentScreen:
+    """The rating and surge screen of one segment of an outlet line (SI; pressures absolute
+    unless named gauge).
+
+    Attributes
+    ----------
+    segment, pipe : str
+        Segment name and pipe label.
+    z_low : float
+        Lowest elevation of the segment on the tank datum [m].
+    length_to_end : float
+        Developed length from the tank to the segment's downstream end [m].
+    velocity : float
+        Velocity in the segment at the drain's highest flow [m/s].
+    running : float
+        Highest running pressure at the segment's stations at that flow [Pa abs].
+    screen : IntegrityScreen
+        :func:`kit.studies.integrity.screen_line` of the segment.
+    rho : float
+        Density the screen used [kg/m³].
+    """
+
+    segment: str
+    pipe: str
+    z_low: float
+    length_to_end: float
+    velocity: float
+    running: float
+    screen: object
+    rho: float = float("nan")
+
+    @property
+    def p_design(self) -> float:
+        """Highest pressure [Pa abs] (its case: ``screen.governing``)."""
+        return self.screen.p_max
+
+    @property
+    def p_rated(self) -> float:
+        """Maximum allowable gauge pressure of the pipe [Pa] (NaN: not rated)."""
+        r = self.screen.rating
+        return float("nan") if r is None else float(r.P_allow)
+
+    @property
+    def wave_speed(self) -> float:
+        return float("nan") if self.screen.wave_speed is None else float(self.screen.wave_speed)
+
+    @property
+    def joukowsky(self) -> float:
+        """rho a V of stopping the segment's velocity at once [Pa] (NaN: no wave speed)."""
+        return self.rho * self.wave_speed * self.velocity
+
+    @property
+    def t_critical(self) -> float:
+        """2L/a [s], L from the tank to the segment's end (NaN: no wave speed)."""
+        return 2.0 * self.length_to_end / self.wave_speed
+
+
+@dataclass(frozen=True)
+class OutletIntegrity:
+    """Pressure rating and water-hammer screen of a drain's outlet line.
+
+    ``applies`` is False for an orifice outlet (``note`` says why; no figures). ``segments``
+    holds one :class:`SegmentScreen` per segment; ``crest`` is (station, elevation [m],
+    running pressure [Pa abs], lowest pressure after the closure down-surge [Pa abs] or NaN)
+    or None; ``vacuum`` lists (station, lowest pressure [Pa abs]) below atmospheric;
+    ``level`` and ``flow`` are the drain's highest-flow point the surge is screened at.
+    """
+
+    applies: bool
+    note: str
+    segments: tuple = ()
+    crest: tuple | None = None
+    vacuum: tuple = ()
+    level: float = float("nan")
+    flow: float = float("nan")
+    findings: tuple = ()
+    p_atm: float = 101325.0
+
+    @property
+    def governing(self) -> SegmentScreen | None:
+        """The segment with the least rating margin (else the highest pressure)."""
+        if not self.segments:
+            return None
+        rated = [g for g in self.segments if math.isfinite(g.p_rated)]
+        if rated:
+            return min(rated, key=lambda g: g.p_rated - (g.p_design - self.p_atm))
+        return max(self.segments, key=lambda g: g.p_design)
+
+
+def _integrity_subject(seg) -> str:
+    return f"outlet segment '{seg.name}' ({seg.pipe.label})"
+
+
+def integrity_of(s: DrainStudy) -> OutletIntegrity:
+    """Pressure rating and water-hammer screen of the study's outlet line, per segment.
+
+    The method is :data:`TANK_INTEGRITY_METHOD`; each segment goes through
+    :func:`kit.studies.integrity.screen_line` (ASME B31.3 / ISO plastic rating, B16.5 flange
+    class, Korteweg wave speed, Joukowsky / Michaud closure rise), the siphon crest through
+    :func:`kit.core.surge.surge_screen` and every station below atmospheric through
+    :func:`kit.core.rating.vacuum_findings`. An orifice outlet gets ``applies=False`` and
+    :data:`ORIFICE_NOTE`, no figures.
+
+    Example
+    -------
+    >>> from kit.notebook import open_scenario
+    >>> g = integrity_of(study(open_scenario("marlow_vale_cip_dump.toml")))
+    >>> g.applies, len(g.segments), g.segments[0].screen.governing
+    (True, 3, 'surge on running pressure')
+    >>> round(g.segments[-1].joukowsky / 1e5, 1)   # rho a V of the initial drain [bar]
+    55.7
+    """
+    from kit.core import rating as rt
+    from kit.core import surge as sg
+    from kit.core.constants import G
+    from kit.core.drain import station_pressures
+    from kit.core.findings import Finding, Severity
+    from kit.errors import HeadlineError
+    from kit.studies.integrity import screen_line
+
+    inp, outlet, res = s.inputs, s.outlet, s.result
+    if not isinstance(outlet, PipedOutlet):
+        return OutletIntegrity(False, ORIFICE_NOTE)
+    segs = tuple(getattr(outlet.line, "segments", ()) or ())
+    if not segs:
+        return OutletIntegrity(False, "not screened: the outlet line has no segments (no pipe "
+                                      "to rate)")
+    opts, state, p_atm = inp.integrity, inp.state, inp.p_atm
+    rho, T, pv = state.rho, state.T, state.pv
+    z = outlet.inlet_elevation + np.concatenate([[0.0], np.cumsum([g.rise for g in segs])])
+    names = [getattr(outlet.line, "start_station", "start")] + [g.station for g in segs]
+    ends = np.cumsum([g.length for g in segs])
+    p_end = outlet.receiver_pressure if outlet.receiver_pressure is not None else p_atm
+    # the drain's highest-flow point: the velocity the closure stops
+    i = int(np.argmax(res.flow)) if res.flow.size else 0
+    h_run = float(res.level[i]) if res.level.size else inp.start
+    Q_run = float(res.flow[i]) if res.flow.size else 0.0
+
+    def _pressures(levels, flows):
+        P = station_pressures(outlet, state, levels, flows, inp.p_surface)
+        if outlet.free:  # the jet's end station is at the receiver pressure
+            P = np.vstack([P, np.full((1, P.shape[1]), p_end)])
+        return P
+
+    P_run = _pressures([h_run], [Q_run])[:, 0]
+    P_all = _pressures(res.level, res.flow) if res.level.size else P_run[:, None]
+    P_low = P_all.min(axis=1)
+    h_full = inp.tank.h_max
+    findings: list = []
+    rows = []
+    # the siphon crest: an inner station above the lowest level of the drain
+    inner = list(range(1, len(segs)))
+    k_top = max(inner, key=lambda j: z[j]) if inner else None
+    crest = None
+    if k_top is not None and z[k_top] > float(res.level[-1] if res.level.size else inp.target):
+        crest = k_top
+    for k, seg in enumerate(segs):
+        z_low = float(min(z[k], z[k + 1]))
+        other = {}
+        if not outlet.free:
+            other[_RECEIVER] = p_end + rho * G * (outlet.receiver_level - z_low)
+        V = Q_run / seg.pipe.area
+        p_run = float(max(P_run[k], P_run[k + 1], 1.0))
+        scr = screen_line(
+            _integrity_subject(seg), seg.pipe, inp.liquid, T, p_atm, pv,
+            length=float(ends[k]), velocity=V, running_pressure=p_run, opts=opts,
+            standing=(h_full - z_low, inp.p_surface), rho=rho, other_cases=other,
+            running_label=_RUNNING, standing_label=_STANDING, closure_note=(k == len(segs) - 1))
+        rows.append(SegmentScreen(seg.name, seg.pipe.label, z_low, float(ends[k]), V, p_run, scr,
+                                  rho))
+        findings += list(scr.findings)
+        # vacuum: any of the segment's stations below atmospheric at any time of the drain
+        below = [(names[j], max(float(P_low[j]), 0.0)) for j in (k, k + 1)
+                 if P_low[j] < p_atm]
+        if below:
+            try:
+                findings += rt.vacuum_findings(_integrity_subject(seg), seg.pipe, below,
+                                               p_atm=p_atm)
+            except HeadlineError as exc:
+                findings.append(Finding(
+                    Severity.CHECK, _integrity_subject(seg), "vacuum (external pressure)",
+                    float("nan"), "-", "screened", f"not screened: {exc}",
+                    "kit.studies.integrity"))
+    vac = tuple((names[j], float(P_low[j])) for j in range(len(names)) if P_low[j] < p_atm)
+    crest_row = None
+    if crest is not None:
+        seg = segs[crest - 1]   # the segment rising to the crest
+        a = rows[crest - 1].wave_speed
+        name = names[crest]
+        if not math.isfinite(a) or pv is None:
+            why = ("no wave speed for its pipe (see the segment's findings)" if pv is not None
+                   else "the liquid has no vapour-pressure model: give one")
+            findings.append(Finding(
+                Severity.CHECK, _integrity_subject(seg), f"column separation at '{name}'",
+                float("nan"), "-", "screened", f"not screened: {why}",
+                "kit.studies.integrity"))
+            crest_row = (name, float(z[crest]), float(P_run[crest]), float("nan"))
+        else:
+            # the worst time of the drain: crest pressure less rho a V at each level
+            # (a liquid is never below its vapour pressure: a crest computed lower, as where
+            # the siphon cannot run, is taken at it, and any drop then parts the column)
+            V_t = res.flow / seg.pipe.area
+            p_c = np.maximum(P_all[crest], pv)
+            after = p_c - rho * a * V_t
+            j = int(np.argmin(after))
+            scr = sg.surge_screen(_integrity_subject(seg), rho, a, float(ends[crest - 1]),
+                                  float(V_t[j]), max(float(p_c[j]), 1.0),
+                                  trip_stations=[(name, max(float(p_c[j]), 1.0))],
+                                  pv=pv, p_atm=p_atm, event=_CREST_EVENT)
+            findings += list(scr.findings)
+            crest_row = (name, float(z[crest]), float(p_c[j]), float(after[j]))
+    return OutletIntegrity(True, "", tuple(rows), crest_row, vac, h_run, Q_run,
+                           tuple(findings), p_atm)
+
+
+def integrity_rows(g: OutletIntegrity, p_atm: float) -> list[dict]:
+    """One row per segment (SI): design pressure [Pa abs] and its case, rated pressure and
+    margin [Pa gauge], wave speed [m/s], Joukowsky rise [Pa], 2L/a [s], closure rise [Pa]
+    and its regime, and the segment's verdict."""
+    out = []
+    for r in g.segments:
+        scr = r.screen
+        out.append({
+            "segment": r.segment, "pipe": r.pipe, "z_low": r.z_low,
+            "design_pressure": r.p_design, "design_gauge": r.p_design - p_atm,
+            "governing": scr.governing, "rated_pressure": r.p_rated,
+            "margin": r.p_rated - (r.p_design - p_atm), "velocity": r.velocity,
+            "wave_speed": r.wave_speed, "joukowsky_rise": r.joukowsky,
+            "t_critical": r.t_critical,
+            "surge_rise": float("nan") if scr.surge_rise is None else scr.surge_rise,
+            "regime": scr.surge_regime or "", "verdict": scr.verdict})
+    return out
+
+
 # ---------------------------------------------------------------------------- results
 
 def _bore(outlet) -> float:
@@ -341,7 +616,7 @@ def caution_topics(inp: DrainInputs) -> tuple:
     """Keys of :data:`kit.core.findings.CAUTIONS` that apply to these inputs."""
     topics = ["drain", "vacuum"]
     if isinstance(inp.outlet, PipedOutlet):
-        topics.append("water_hammer")
+        topics += ["pressure", "water_hammer"]
     if getattr(inp.state, "flammable", False):
         topics.append("flammable")
     return tuple(topics)
@@ -415,6 +690,8 @@ def results_of(s: DrainStudy, doc: dict | None = None) -> Results:
                                           worst(cr.findings).value if cr.findings else None,
                                           subjects=(f"({c.label})", c.label)))
     r.selected = f"outlet: {s.outlet.name}"
+    g = integrity_of(s)
+    _report_integrity(r, g, inp)
 
     # tables
     r.tables["times"] = times_rows(s)
@@ -460,6 +737,57 @@ def results_of(s: DrainStudy, doc: dict | None = None) -> Results:
             "source).")
     r.cautions = cautions
     return r
+
+
+def _report_integrity(r: Results, g: OutletIntegrity, inp: DrainInputs) -> None:
+    """Values, table, findings and methods of the outlet line's rating and surge screen."""
+    from kit.inputs.common import IntegrityOptions
+
+    name = "Pressure rating and water-hammer screen"
+    if not g.applies:
+        unused = ("" if inp.integrity == IntegrityOptions() else
+                  "; the [integrity] options given are not used")
+        r.method(name, g.note + unused)
+        return
+    p_atm = inp.p_atm
+    segs = g.segments
+    top = max(segs, key=lambda x: x.p_design)
+    r.add("integrity.max_pressure", f"outlet line: highest pressure ({top.screen.governing})",
+          top.p_design, "pressure_abs")
+    gov = g.governing
+    if math.isfinite(gov.p_rated):
+        r.add("integrity.rated_pressure", "outlet line: maximum allowable pressure (gauge)",
+              gov.p_rated, "pressure_difference")
+        r.add("integrity.margin", "outlet line: least rating margin",
+              gov.p_rated - (gov.p_design - p_atm), "pressure_difference")
+    surged = [x for x in segs if x.screen.surge_rise is not None]
+    if surged:
+        big = max(surged, key=lambda x: x.screen.surge_rise)
+        r.add("integrity.wave_speed", "outlet line: wave speed (Korteweg)", big.wave_speed,
+              "velocity")
+        r.add("integrity.surge_rise", f"outlet line: valve-closure surge rise "
+              f"({big.screen.surge_regime})", big.screen.surge_rise, "pressure_difference")
+        last = segs[-1]
+        if math.isfinite(last.wave_speed):
+            r.add("integrity.critical_closure_time", "outlet line: 2L/a, whole line",
+                  last.t_critical, "time_short")
+    if g.crest is not None and math.isfinite(g.crest[3]):
+        pv = inp.state.pv
+        r.add("integrity.crest_lowest_pressure", f"siphon crest '{g.crest[0]}': pressure "
+              "after closure down-surge", max(g.crest[3], pv), "pressure_abs")
+    r.tables["integrity"] = integrity_rows(g, p_atm)
+    r.findings += list(g.findings)
+    for m, text_ in INTEGRITY_METHODS:
+        r.method(m, text_)
+    cmp = inp.compare_outlet
+    r.method("Outlet line: highest pressure and surge", TANK_INTEGRITY_METHOD + (
+        " The what-if line is not screened: screen it by making it the outlet."
+        if isinstance(cmp, PipedOutlet) else ""))
+    if g.vacuum:
+        r.method("Vacuum screen", "elastic buckling of a long unsupported tube, Timoshenko & "
+                 "Gere (1961), Theory of Elastic Stability, with a safety factor "
+                 "(kit.core.rating.VACUUM_SAFETY_FACTOR), where a station is below "
+                 "atmospheric during the drain")
 
 
 def _tank_reference(tank) -> str:

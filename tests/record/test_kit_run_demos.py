@@ -16,7 +16,7 @@ import pytest
 ROOT = Path(__file__).resolve().parents[2]
 DEMOS = sorted((ROOT / "scenarios").glob("*.toml"))
 NOTEBOOK_OF = {"line_sizing": "line_sizing", "pump_selection": "pump_selection",
-               "tank_drainage": "tank_drainage"}
+               "tank_drainage": "tank_drainage", "network": "network_systems"}
 
 
 class _Urls(HTMLParser):
