@@ -50,7 +50,7 @@ __all__ = [
     "Grade", "GRADES", "JOINT_FACTORS", "Y_TABLE", "allowable_stress", "y_coefficient",
     "b31_3_thickness", "b31_3_pressure", "MetalRating", "metal_pipe_rating",
     "PlasticCompound", "COMPOUNDS", "derating_factor", "sdr_pressure", "PlasticRating",
-    "plastic_pipe_rating", "pipe_rating",
+    "plastic_pipe_rating", "pipe_rating", "GivenRating",
     "FLANGE_RATINGS", "FLANGE_SOURCE", "flange_rating", "flange_findings",
     "VACUUM_SAFETY_FACTOR", "buckling_pressure", "vacuum_findings",
     "RATING_MARGIN_CHECK", "rating_findings",
@@ -975,6 +975,40 @@ def plastic_pipe_rating(P: float, Do: float, wall: float, T: float, compound: st
 _DEFAULT_GRADE = {"carbon_steel": "a106_b", "galvanised_steel": "a53_b",
                   "stainless_steel": "a312_tp304"}
 _DEFAULT_COMPOUND = {"pvc": "pvc_1120", "hdpe": "pe4710"}
+
+
+@dataclass(frozen=True)
+class GivenRating:
+    """A pressure rating given by the user from the maker's data (hose, lined or special pipe).
+
+    The kit does not compute it; it compares the highest pressure against it. Pressures gauge.
+
+    Examples
+    --------
+    >>> r = GivenRating(6e5, 10e5)
+    >>> r.holds, r.margin
+    (True, 400000.0)
+    """
+
+    P: float
+    P_allow: float
+    method: str = "maker's pressure rating"
+    basis: str = "given in [integrity] rated_pressure, at the design temperature"
+    source: str = "the maker's datasheet (given by the user; not checked by the kit)"
+
+    def __post_init__(self):
+        check_range("[integrity] rated_pressure", self.P_allow, "Pa", low=0.0,
+                    low_inclusive=False)
+
+    @property
+    def margin(self) -> float:
+        """``P_allow - P`` [Pa]."""
+        return self.P_allow - self.P
+
+    @property
+    def holds(self) -> bool:
+        """True when the design pressure is within the rating."""
+        return self.P <= self.P_allow
 
 
 def pipe_rating(pipe, P: float, T: float, grade: str | None = None,

@@ -297,8 +297,18 @@ INTEGRITY = Table("integrity", "pressure rating and water-hammer screening: the 
     Key("bulk_modulus", "quantity", "the liquid's bulk modulus (required for surge where the "
         "property model has no speed of sound)", kind="pressure_difference", low=1e7,
         high=2e10),
+    Key("rated_pressure", "quantity", "maker's pressure rating of the line at the design "
+        "temperature (hose, lined or special pipe; gauge, e.g. \"10 bar\"): used in place of "
+        "the computed wall rating", kind="pressure_difference", low=0.0, low_inclusive=False,
+        high=1e9),
+    Key("wave_speed", "quantity", "pressure wave speed of the line from the maker or a test "
+        "(hose, lined pipe): used in place of the Korteweg estimate", kind="velocity",
+        low=10.0, high=2500.0),
     Key("note", "text", "free text"),
-), exclusive=((("grade",), ("compound",)),))
+), exclusive=((("grade",), ("compound",)), (("rated_pressure",), ("grade",)),
+              (("rated_pressure",), ("compound",)), (("rated_pressure",), ("joint",)),
+              (("rated_pressure",), ("corrosion_allowance",)),
+              (("wave_speed",), ("anchoring",)), (("wave_speed",), ("bulk_modulus",))))
 
 
 # ---------------------------------------------------------------- readers
@@ -527,6 +537,8 @@ class IntegrityOptions:
     closure_time: float | None = None
     anchoring: str = "anchored_throughout"
     bulk_modulus: float | None = None
+    rated_pressure: float | None = None
+    wave_speed: float | None = None
 
 
 def build_integrity(doc: dict) -> IntegrityOptions:
@@ -545,4 +557,8 @@ def build_integrity(doc: dict) -> IntegrityOptions:
         None if t is None else quantity(sec, "closure_time", "time", prefix="integrity."),
         sec.get("anchoring", "anchored_throughout"),
         None if K is None else quantity(sec, "bulk_modulus", "pressure_difference",
-                                        prefix="integrity."))
+                                        prefix="integrity."),
+        None if sec.get("rated_pressure") is None else quantity(
+            sec, "rated_pressure", "pressure_difference", prefix="integrity."),
+        None if sec.get("wave_speed") is None else quantity(
+            sec, "wave_speed", "velocity", prefix="integrity."))

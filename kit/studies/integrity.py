@@ -142,22 +142,17 @@ def screen_line(subject: str, pipe, liquid, T: float, p_atm: float, pv: float | 
     """
     from kit.core import rating as rt
     from kit.core import surge as sg
-    from kit.core.liquids import bulk_modulus
 
     findings: list[Finding] = []
     state = liquid.state(T, max(running_pressure, p_atm))
     rho = rho if rho is not None else state.rho
-    a = None
-    try:
-        K = bulk_modulus(liquid, T, max(running_pressure, p_atm), K_user=opts.bulk_modulus)
-    except HeadlineError as exc:
-        findings.append(_not_screened(subject, "water-hammer screen",
-                                      f"{exc} (give [integrity] bulk_modulus)"))
-    else:
-        try:
-            a = sg.pipe_wave_speed(pipe, K.K, rho, anchoring=opts.anchoring).a
-        except HeadlineError as exc:
-            findings.append(_not_screened(subject, "water-hammer screen", str(exc)))
+    # the maker's (or a measured) wave speed and rating stand in for the Korteweg estimate
+    # and the wall formula: hose, lined pipe, materials the kit has no method for
+    a = opts.wave_speed
+    given_rating = opts.rated_pressure
+    if a is None:
+        a = _korteweg(subject, pipe, liquid, T, max(running_pressure, p_atm), rho, opts,
+                      findings)
     closure = None
     if a is not None:
         tc = opts.closure_time if opts.closure_time is not None else \
@@ -186,9 +181,12 @@ def screen_line(subject: str, pipe, liquid, T: float, p_atm: float, pv: float | 
     try:
         # the allowable pressure does not depend on the design pressure: a line never above
         # atmospheric is rated at a nominal 1 Pa (gauge) and passes with its margin shown
-        rating = rt.pipe_rating(pipe, max(cases.gauge(p_atm), 1.0), T, grade=opts.grade,
-                                compound=opts.compound, joint=opts.joint,
-                                corrosion_allowance=opts.corrosion_allowance)
+        if given_rating is not None:
+            rating = rt.GivenRating(max(cases.gauge(p_atm), 1.0), given_rating)
+        else:
+            rating = rt.pipe_rating(pipe, max(cases.gauge(p_atm), 1.0), T, grade=opts.grade,
+                                    compound=opts.compound, joint=opts.joint,
+                                    corrosion_allowance=opts.corrosion_allowance)
         findings += rt.rating_findings(subject, cases, rating, p_atm)
     except HeadlineError as exc:
         findings.append(_not_screened(subject, "pressure rating", str(exc)))
@@ -219,3 +217,23 @@ def screen_line(subject: str, pipe, liquid, T: float, p_atm: float, pv: float | 
                            None if closure is None else closure.dp,
                            None if closure is None else closure.regime, downsurge,
                            tuple(findings))
+
+
+def _korteweg(subject, pipe, liquid, T, p, rho, opts, findings):
+    """Korteweg wave speed of the line [m/s], or None with a not-screened finding."""
+    from kit.core import surge as sg
+    from kit.core.liquids import bulk_modulus
+
+    try:
+        K = bulk_modulus(liquid, T, p, K_user=opts.bulk_modulus)
+    except HeadlineError as exc:
+        findings.append(_not_screened(subject, "water-hammer screen",
+                                      f"{exc} (give [integrity] bulk_modulus, or the line's "
+                                      "wave_speed)"))
+        return None
+    try:
+        return sg.pipe_wave_speed(pipe, K.K, rho, anchoring=opts.anchoring).a
+    except HeadlineError as exc:
+        findings.append(_not_screened(subject, "water-hammer screen",
+                                      f"{exc} (or give [integrity] wave_speed from the maker)"))
+        return None

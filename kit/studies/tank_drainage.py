@@ -763,8 +763,9 @@ def _report_integrity(r: Results, g: OutletIntegrity, inp: DrainInputs) -> None:
     surged = [x for x in segs if x.screen.surge_rise is not None]
     if surged:
         big = max(surged, key=lambda x: x.screen.surge_rise)
-        r.add("integrity.wave_speed", "outlet line: wave speed (Korteweg)", big.wave_speed,
-              "velocity")
+        given = inp.integrity is not None and inp.integrity.wave_speed is not None
+        r.add("integrity.wave_speed", "outlet line: wave speed "
+              f"({'given' if given else 'Korteweg'})", big.wave_speed, "velocity")
         r.add("integrity.surge_rise", f"outlet line: valve-closure surge rise "
               f"({big.screen.surge_regime})", big.screen.surge_rise, "pressure_difference")
         last = segs[-1]

@@ -385,13 +385,53 @@ def test_user_liquid_needs_a_bulk_modulus_and_uses_the_given_one():
     assert sum(f.quantity == "valve closure time" for f in gi.findings) == 1
 
 
+def _without_integrity(text: str) -> str:
+    return text.split("\n[integrity]")[0]
+
+
 def test_siphon_demo_without_a_wall_is_reported_not_screened():
-    r = td.compute(scn.load(SIPHON_DEMO))
+    r = td.compute(scn.loads(_without_integrity(SIPHON_DEMO.read_text(encoding="utf-8"))))
     seg = [f for f in r.findings if "outlet segment" in f.subject]
     assert seg and all(f.severity is not Severity.PASS for f in seg if "screen" in f.limit)
     why = {f.rule for f in seg if f.quantity == "pressure rating"}
     assert why and all("outside diameter" in w for w in why)
     assert r.value("integrity.max_pressure") > 0  # the static cases need no wall
+
+
+def test_makers_rating_and_wave_speed_stand_in_for_the_wall_formulas():
+    # the siphon demo's hose: no wall, so its rating and wave speed are the maker's (given)
+    r = td.compute(scn.load(SIPHON_DEMO))
+    assert r.value("integrity.wave_speed") == pytest.approx(260.0)
+    assert r.value("integrity.rated_pressure") == pytest.approx(6e5)
+    seg = [f for f in r.findings if "outlet segment" in f.subject]
+    assert not [f for f in seg if f.quantity == "pressure rating"]  # rated, not "not screened"
+    rated = [f for f in seg if "maker" in f.source]
+    assert rated and all(f.severity is Severity.PASS for f in rated)
+    # Michaud (1878) for a closure slower than 2L/a: dp = 2 rho L V / t_c, by hand
+    st = td.study(scn.load(SIPHON_DEMO))
+    gi = td.integrity_of(st)
+    last = gi.segments[-1]
+    rho = st.inputs.state.rho
+    assert 2.0 * last.length_to_end / 260.0 < 3.0  # slower than the critical time
+    assert last.screen.surge_rise == pytest.approx(
+        2.0 * rho * last.length_to_end * last.velocity / 3.0, rel=1e-9)
+
+
+@pytest.mark.parametrize("extra, match", [
+    ('rated_pressure = "6 bar"\ngrade = "a106_b"', r"integrity\.(grade|rated_pressure)"),
+    ('rated_pressure = "6 bar"\ncorrosion_allowance = "1 mm"',
+     r"integrity\.(corrosion_allowance|rated_pressure)"),
+    ('wave_speed = "300 m/s"\nanchoring = "free_end"', r"integrity\.(anchoring|wave_speed)"),
+    ('wave_speed = "300 m/s"\nbulk_modulus = "2 GPa"', r"integrity\.(bulk_modulus|wave_speed)"),
+    ('wave_speed = "3 m/s"', r"integrity\.wave_speed"),
+    ('wave_speed = "9000 m/s"', r"integrity\.wave_speed"),
+    ('rated_pressure = "0 bar"', r"integrity\.rated_pressure"),
+    ('rated_pressure = "6 bar(g)"', r"integrity\.rated_pressure"),
+])
+def test_given_rating_and_wave_speed_refuse_what_they_would_silently_override(extra, match):
+    base = DEMO.read_text(encoding="utf-8")
+    with pytest.raises(ScenarioError, match=match):
+        td.compute(scn.loads(base + "\n[integrity]\n" + extra + "\n"))
 
 
 # ------------------------------------------------------------ hostile [integrity] tables
