@@ -321,7 +321,8 @@ RANGES = {
     "pressure_per_length": (0.0, 1e5), "temperature": (0.0, 2000.0),
     "temperature_difference": (-500.0, 500.0), "density": (0.1, 2e4),
     "viscosity": (1e-6, 1e3), "kinematic_viscosity": (1e-8, 1e-1), "power": (0.0, 1e8),
-    "energy": (0.0, 1e12), "time": (0.0, 1e7), "time_short": (0.0, 1e5), "speed": (0.0, 1e5), "fraction": (0.0, 1.0),
+    "energy": (0.0, 1e12), "time": (0.0, 1e7), "time_short": (0.0, 1e5), "speed": (0.0, 1e5),
+    "fraction": (0.0, 1.0),
     "dimensionless": (-1e6, 1e6),
 }
 

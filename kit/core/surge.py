@@ -545,9 +545,12 @@ def surge_screen(subject: str, rho: float, a: float, L: float, V: float,
       ``V``, added to the highest running pressure; FAIL when the peak (gauge) exceeds the
       rating. No occasional-load allowance is taken.
     - Pump trip (for each of ``trip_stations``, the pump discharge and the high points):
-      running pressure less ``rho a V`` (:func:`pump_trip_downsurge`); FAIL at or below the
-      vapour pressure (column separation risk), CHECK below atmospheric (vacuum: air
-      ingress at air valves, collapse of thin walls).
+      running pressure less ``rho a V`` (:func:`pump_trip_downsurge`); at or below the
+      vapour pressure (column separation risk) a CHECK for a pump trip — the instantaneous
+      stop only bounds the drop (the set's inertia slows the run-down), so the screen cannot
+      clear the line and asks for the transient analysis — and a FAIL for any other sudden
+      stop (a valve can shut that fast); CHECK below atmospheric (vacuum: air ingress at air
+      valves, collapse of thin walls).
 
     Every FAIL and CHECK says that a transient analysis by a qualified engineer is required;
     a PASS says it is a screen only.
@@ -590,7 +593,7 @@ def surge_screen(subject: str, rho: float, a: float, L: float, V: float,
     >>> s = surge_screen("discharge", 998.2, 1300.0, 800.0, 2.0, 6e5, rated_pressure=20e5,
     ...                  closure_time=1.0, trip_stations=[("crest", 2.5e5)], pv=2339.0)
     >>> [f.severity.value for f in s.findings]
-    ['fail', 'fail']
+    ['fail', 'check']
     """
     rho = check_range("density", rho, "kg/m³", low=0.0)
     a = check_range("wave speed", a, "m/s", low=0.0)
@@ -643,7 +646,11 @@ def surge_screen(subject: str, rho: float, a: float, L: float, V: float,
                 # a liquid cannot fall below its vapour pressure: the column parts there, and
                 # the finding shows that pressure with the unbounded figure in words
                 shown = pv
-                sev, rule = Severity.FAIL, (
+                # an instantaneous stop bounds the drop from above: for a pump trip (the
+                # set's inertia slows the run-down) the bound only fails to clear the line,
+                # a CHECK that asks for the transient analysis; a valve can shut that fast
+                sev = Severity.CHECK if event == "pump trip" else Severity.FAIL
+                sev, rule = sev, (
                     f"{event}: the down-surge rho·a·V = {drop:.4g} Pa takes '{name}' "
                     f"({p:.4g} Pa abs running) to the vapour pressure (the unbounded drop "
                     f"would give {low:.4g} Pa abs, impossible: the column parts; column "

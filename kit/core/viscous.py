@@ -162,7 +162,8 @@ class ViscousCorrection:
     findings: tuple = field(default=())
 
 
-def viscous_curve(pump: PumpCurve, nu: float, rho: float, *, stages: int = 1) -> ViscousCorrection:
+def viscous_curve(pump: PumpCurve, nu: float, rho: float, *, stages: int = 1,
+                  name: str | None = None) -> ViscousCorrection:
     """Correct a water-performance curve for a viscous liquid by ANSI/HI 9.6.7 (from memory).
 
     Parameters
@@ -175,6 +176,8 @@ def viscous_curve(pump: PumpCurve, nu: float, rho: float, *, stages: int = 1) ->
         Density of the liquid, for the corrected power [kg/m³]
     stages : int
         Number of stages (B uses head per stage) [-]
+    name : str, optional
+        Name of the corrected curve; default the water curve's name with the viscosity [-]
 
     Returns
     -------
@@ -227,7 +230,7 @@ def viscous_curve(pump: PumpCurve, nu: float, rho: float, *, stages: int = 1) ->
     curve = PumpCurve(
         Qw * cq, pump.head_points * ch, speed_rpm=pump.speed_rpm, diameter=pump.diameter,
         efficiency=np.clip(eta_w * ceta, 0.0, 1.0), npshr=pump.npshr_points,
-        name=f"{pump.name} ({nu * 1e6:.4g} cSt)", degrees=dict(pump.degrees),
+        name=name if name is not None else f"{pump.name} ({nu * 1e6:.4g} cSt)", degrees=dict(pump.degrees),
         test_density=rho, head_rise_tolerance=pump.head_rise_tolerance,
         _datasheet=(pump.datasheet_speed_rpm, pump.datasheet_diameter),
         _findings=tuple(pump.scaling_findings))

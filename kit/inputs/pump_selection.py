@@ -37,8 +37,9 @@ from kit.inputs.common import (
 )
 from kit.inputs.pump_selection_schema import ARRANGEMENTS, PUMP, ROOT
 
-__all__ = ["PumpInputs", "read", "build_pump", "build_pumps", "build_system", "PUMP_KEYS",
-           "ARRANGEMENTS", "with_temperatures", "with_pump", "with_doc"]
+__all__ = ["PumpInputs", "DutiesInputs", "read", "build_pump", "build_pumps", "build_system",
+           "build_duties", "PUMP_KEYS", "ARRANGEMENTS", "with_temperatures", "with_pump",
+           "with_doc", "with_load_profile"]
 
 #: Keys a ``[[pumps]]`` table may hold (from the schema).
 PUMP_KEYS = PUMP.names
@@ -61,6 +62,155 @@ class PumpInputs:
     currency: str
     motor_series: str
     integrity: IntegrityOptions = IntegrityOptions()
+    #: the set, drive, staging, load profile, minimum flow and viscosity inputs (None when
+    #: the scenario gives none of those tables)
+    duties: DutiesInputs | None = None
+
+
+@dataclass(frozen=True)
+class DutiesInputs:
+    """The ``[pump_set]``, ``[drive]``, ``[staging]``, ``[load_profile]``, ``[min_flow]``,
+    ``[recirculation]`` and ``[viscous]`` tables in SI.
+
+    ``units`` are candidate names, duty units first (None: the recommended candidate, one
+    duty unit); ``speed_ratio`` is the drive's (min, max) speed as ratios to the datasheet
+    speed, or None; ``profile`` is ((flow [m³/s], hours [h]), ...) or None; ``control`` one of
+    :data:`kit.inputs.pump_selection_schema.CONTROLS` with ``set_head`` / ``design_flow`` /
+    ``design_head`` [m, m³/s, m]; ``min_flow_maker`` [m³/s] or None; ``recirculation`` is
+    (bore [m], static head [m], taps) or None.
+
+    >>> DutiesInputs().strategy
+    'all_vfd'
+    """
+
+    units: tuple | None = None
+    unit_index: tuple | None = None   # index of each unit's candidate in [[pumps]]
+    duty_count: int = 1
+    unlike: bool = False
+    speed: tuple | None = None        # (min speed, max speed) [rpm], or None
+    frequency: tuple | None = None    # (min, max, rated) [rpm-equivalent], or None
+    strategy: str = "all_vfd"
+    basis: str = "pressure"
+    stage_up_flows: tuple | None = None
+    hysteresis: float = 0.10
+    control: str = "system_curve"
+    set_head: float | None = None
+    design_flow: float | None = None
+    design_head: float | None = None
+    profile: tuple | None = None
+    min_flow_given: bool = False
+    min_flow_maker: float | None = None
+    pump_class: str = "general"
+    recirculation: tuple | None = None
+    viscous: bool = False
+    stages: int = 1
+    #: a staging study is asked for ([pump_set], [drive], [staging] or [load_profile] given)
+    staging_given: bool = False
+
+    def speed_ratios(self, datasheet_rpm: float) -> tuple[float, float] | None:
+        """The drive's (min, max) speed as ratios to ``datasheet_rpm`` [-], or None.
+
+        >>> DutiesInputs(speed=(600.0, 1500.0)).speed_ratios(1500.0)
+        (0.4, 1.0)
+        """
+        if self.speed is not None:
+            lo, hi = self.speed
+            return (lo / datasheet_rpm if lo is not None else None,
+                    hi / datasheet_rpm if hi is not None else None)
+        if self.frequency is not None:
+            lo, hi, rated = self.frequency
+            return (lo / rated if lo is not None else None,
+                    hi / rated if hi is not None else None)
+        return None
+
+
+_DUTY_TABLES = ("pump_set", "drive", "staging", "load_profile", "min_flow", "recirculation",
+                "viscous")
+
+
+def build_duties(doc: dict, names) -> DutiesInputs | None:
+    """The duties inputs of a checked document (None when it gives none of their tables).
+
+    ``names`` are the candidates' names as written (the ``name`` key of each ``[[pumps]]``
+    table, or the built name); a unit naming no candidate is a
+    :class:`ScenarioError` that lists them, and so are unlike units without ``unlike = true``.
+    """
+    if not any(t in doc for t in _DUTY_TABLES):
+        return None
+    names = list(names)
+    ps_ = doc.get("pump_set") or {}
+    units_ = None
+    duty_count = int(ps_.get("duty_count", 1))
+    unlike = bool(ps_.get("unlike", False))
+    if "units" in ps_:
+        units_ = tuple(str(u) for u in ps_.get("units"))
+        where = "pump_set.units"
+    elif "pump" in ps_:
+        units_ = (str(ps_.get("pump")),) * (duty_count + int(ps_.get("standby_count", 0)))
+        where = "pump_set.pump"
+    index = None
+    if units_ is not None:
+        for i, u in enumerate(units_):
+            if u not in names:
+                key = f"{where}[{i}]" if where.endswith("units") else where
+                raise ScenarioError(key, f"names no candidate pump: {u!r} (candidates: "
+                                    f"{', '.join(repr(n) for n in names)})")
+        index = tuple(names.index(u) for u in units_)
+        if len(set(units_)) > 1 and not unlike:
+            raise ScenarioError("pump_set.unlike", f"must be true for units of different "
+                                f"pumps ({', '.join(sorted(set(units_)))}): unlike pumps in "
+                                "parallel need their own check valves and a dead-heading check")
+    dr = doc.get("drive") or {}
+    speed = freq = None
+    if "min_speed" in dr or "max_speed" in dr:
+        speed = tuple(quantity(dr, k, "speed", prefix="drive.") if k in dr else None
+                      for k in ("min_speed", "max_speed"))
+        if None not in speed and speed[1] <= speed[0]:
+            raise ScenarioError("drive.max_speed", f"must be above min_speed "
+                                f"({dr.get('min_speed')}), not {dr.get('max_speed')}")
+    elif "rated_frequency" in dr:
+        freq = tuple(quantity(dr, k, "speed", prefix="drive.") if k in dr else None
+                     for k in ("min_frequency", "max_frequency", "rated_frequency"))
+        if None not in freq[:2] and freq[1] <= freq[0]:
+            raise ScenarioError("drive.max_frequency", f"must be above min_frequency "
+                                f"({dr.get('min_frequency')}), not {dr.get('max_frequency')}")
+    st = doc.get("staging") or {}
+    up = _list(st, "stage_up_flows", "staging.", required=False)
+    if up is not None and any(b <= a for a, b in zip(up, up[1:], strict=False)):
+        raise ScenarioError("staging.stage_up_flows", "must rise from one step to the next")
+    lp = doc.get("load_profile")
+    profile = None
+    if lp is not None:
+        q = _list(lp, "flow", "load_profile.")
+        t = [h / 3600.0 for h in _list(lp, "hours", "load_profile.")]
+        if len(set(q)) != len(q):
+            raise ScenarioError("load_profile.flow", "must not repeat a flow (merge the hours "
+                                "of equal flows)")
+        if sum(t) > 8784.0:
+            raise ScenarioError("load_profile.hours", f"must total at most 8784 h a year, not "
+                                f"{sum(t):.6g} h")
+        profile = tuple(zip(q, t, strict=True))
+    mf = doc.get("min_flow")
+    rc = doc.get("recirculation")
+    recirc = None
+    if rc is not None:
+        recirc = (quantity(rc, "bore", "diameter", prefix="recirculation."),
+                  quantity(rc, "static_head", "head", default=0.0, prefix="recirculation."),
+                  rc.get("taps", "flange"))
+    vs = doc.get("viscous") or {}
+    return DutiesInputs(
+        units_, index, duty_count, unlike, speed, freq, st.get("strategy", "all_vfd"),
+        st.get("basis", "pressure"), None if up is None else tuple(up),
+        quantity(st, "hysteresis", "fraction", default=0.10, prefix="staging."),
+        st.get("control", "system_curve"),
+        quantity(st, "set_head", "head", prefix="staging.") if "set_head" in st else None,
+        quantity(st, "design_flow", "flow", prefix="staging.") if "design_flow" in st else None,
+        quantity(st, "design_head", "head", prefix="staging.") if "design_head" in st else None,
+        profile, mf is not None,
+        quantity(mf, "maker", "flow", prefix="min_flow.") if mf and "maker" in mf else None,
+        (mf or {}).get("pump_class", "general"), recirc, bool(vs.get("correct", False)),
+        int(vs.get("stages", 1)),
+        any(t in doc for t in ("pump_set", "drive", "staging", "load_profile")))
 
 
 def read(sc) -> PumpInputs:
@@ -75,16 +225,19 @@ def read(sc) -> PumpInputs:
     op = doc.get("operation", {})
     q_req = quantity(duty, "flow", "flow", prefix="duty.") if "flow" in duty else None
     hours = quantity(op, "hours_per_year", "time", default=0.0, prefix="operation.") / 3600.0
-    inp = PumpInputs(build_system(sc), tuple(build_pumps(sc)), q_req,
+    pumps = tuple(build_pumps(sc))
+    inp = PumpInputs(build_system(sc), pumps, q_req,
                      duty.get("npsh_application", "general"), hours,
                      float(op.get("tariff", 0.0)), str(op.get("currency", "")),
-                     op.get("motor_series", "IEC"), build_integrity(doc))
+                     op.get("motor_series", "IEC"), build_integrity(doc),
+                     build_duties(doc, [str(t.get("name") or p.name) for t, p in
+                                        zip(doc.get("pumps"), pumps, strict=True)]))
     sc._built["inputs"] = inp
     return inp
 
 
 _LIST_KIND = {"flow": "flow", "head": "head", "efficiency": "fraction", "npshr": "head",
-              "power": "power"}
+              "power": "power", "stage_up_flows": "flow", "hours": "time"}
 #: The first words of a PumpCurve error's field -> the scenario key it came from.
 _FIELD_KEY = (("flow of pump", "flow"), ("head of pump", "head"),
               ("efficiency of pump", "efficiency"), ("NPSHr of pump", "npshr"),
@@ -235,4 +388,23 @@ def with_pump(sc, index: int, pump_doc: dict):
 
     doc = copy.deepcopy(sc.doc)
     doc["pumps"][index] = copy.deepcopy(dict(pump_doc))
+    return with_doc(sc, doc)
+
+
+def with_load_profile(sc, flows, hours):
+    """The scenario with ``[load_profile]`` set to the texts ``flows`` and ``hours`` (lists of
+    strings with units, one per step), checked against the schema.
+
+    >>> from kit.notebook import open_scenario
+    >>> sc = with_load_profile(open_scenario("kestrel_ridge_booster.toml"), ["100 m3/h"],
+    ...                        ["2000 h"])
+    >>> sc.doc["load_profile"]["hours"]
+    ['2000 h']
+    """
+    import copy
+
+    doc = copy.deepcopy(sc.doc)
+    lp = doc.setdefault("load_profile", {})
+    lp["flow"] = [str(f) for f in flows]
+    lp["hours"] = [str(h) for h in hours]
     return with_doc(sc, doc)

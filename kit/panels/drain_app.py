@@ -417,9 +417,18 @@ class DrainApp(widgets.VBox):
         #: The scenario the app was filled from (None: built from inputs); kept unchanged.
         self.source_scenario = scenario.copy() if scenario is not None else None
         self.p_atm = inp.p_atm
+        #: The outlet line's rating and surge-screen options (the scenario's ``[integrity]``
+        #: table; no panel edits them): handed on with every computation.
+        self.integrity = getattr(inp, "integrity", None)
         self.study: td.DrainStudy | None = None
         self.results = None
         self.recomputes = 0
+        #: (inputs, (study, results)) of the last few computations, newest last: the study
+        #: is a pure function of its inputs, so going back to inputs seen before (an outlet
+        #: size tried and tried again) re-renders without draining the tank again.
+        self._cache: list = []
+        #: the axis ranges shown, per (chart, axis), SI (see ``_steady_range``)
+        self._axis: dict = {}
         self._hold = 0
         if compare_size is None and inp.compare_outlet is not None:
             compare_size = _size_of(inp.compare_outlet)
@@ -617,10 +626,11 @@ class DrainApp(widgets.VBox):
         if size is not None:
             label = self._whatif_label(size).strip()
             cmp = self.outlet.build(size, label)
+        extra = {"integrity": self.integrity} if self.integrity is not None else {}
         return td.drain_inputs(s.tank, sel.liquid, sel.T, outlet, start=s.start,
                                target=s.target, levels=s.levels, p_atm=self.p_atm,
                                surface=s.surface, p_surface=s.p_surface, vent=s.vent,
-                               compare_outlet=cmp, compare_label=label)
+                               compare_outlet=cmp, compare_label=label, **extra)
 
     # ------------------------------------------------------------------ saving
     def to_scenario(self):
@@ -859,19 +869,29 @@ class DrainApp(widgets.VBox):
         """Read the panels, drain the tank through both outlets and re-render."""
         def run():
             inp = self.read_inputs()
+            for k, (seen, out) in enumerate(self._cache):
+                if _same_inputs(seen, inp):
+                    self._cache.append(self._cache.pop(k))
+                    return out
             st = td.study(None, inp)
-            return st, td.results_of(st)
+            out = (st, td.results_of(st))
+            self.recomputes += 1
+            self._cache = [*self._cache[-(_CACHE_SIZE - 1):], (inp, out)]
+            return out
 
         out = self.refusals.attempt(run)
         if out is None:
             return
-        self.recomputes += 1
         self.study, self.results = out
         self._render()
 
     # ------------------------------------------------------------------ render
     def _render(self) -> None:
         st, r = self.study, self.results
+        # the charts first (the level chart, the workspace's main chart, leads): their
+        # messages leave for the browser before the sketch's and the tables'
+        self._render_charts()
+        self._render_status()
         self.tank.set_outlet(_mark(st.outlet))
         rows = []
         for row in td.times_rows(st):
@@ -880,9 +900,7 @@ class DrainApp(widgets.VBox):
                 row["saved"] = row["time"] - row["compare_time"]
             rows.append(row)
         self.times.value = tuple(rows)
-        self._render_status()
         self._render_summary()
-        self._render_charts()
         self.findings.show(r.findings, td.caution_topics(st.inputs))
         shown = set(cautions_for(*td.caution_topics(st.inputs)))
         extra = [c for c in r.cautions if c not in shown]
@@ -979,9 +997,26 @@ class DrainApp(widgets.VBox):
 
     def _render_charts(self) -> None:
         parts = chart_parts(self.study)
-        for chart, (series, x_range, y_range) in zip((self.level_chart, self.flow_chart), parts,
-                                                     strict=True):
+        for k, (chart, (series, x_range, y_range)) in enumerate(
+                zip((self.level_chart, self.flow_chart), parts, strict=True)):
+            # time axes and the outflow axis hold steady; the level axis is the tank's own
+            x_range = self._steady_range((k, "x"), x_range)
+            if k == 1:
+                y_range = self._steady_range((k, "y"), y_range)
             chart.set_series(series, x_range=x_range, y_range=y_range)
+
+    def _steady_range(self, key, new: tuple) -> tuple:
+        """An axis range that holds while the data fit it: the range shown is kept while the
+        new one lies inside it and spans at least half of it, so a change that moves the
+        curves only (an outlet size tried and tried back) redraws the traces, not the axes
+        (the browser's fast path). The record's figures use the tight ranges."""
+        cur = self._axis.get(key)
+        lo, hi = float(new[0]), float(new[1])
+        if cur is not None and cur[0] == lo and lo < hi <= cur[1] \
+                and (hi - lo) >= 0.5 * (cur[1] - cur[0]):
+            return cur
+        self._axis[key] = (lo, hi)
+        return self._axis[key]
 
     # ------------------------------------------------------------------ display system
     def set_system(self, system: str) -> None:
@@ -1051,6 +1086,19 @@ def drain_figures(st: td.DrainStudy, system: str = "SI") -> list:
                          range=list(to_display(yr, yk, system)))
         out.append(fig)
     return out
+
+
+#: How many computations :class:`DrainApp` keeps (see ``DrainApp._cache``).
+_CACHE_SIZE = 16
+
+
+def _same_inputs(a, b) -> bool:
+    """``a == b`` for two :class:`~kit.inputs.tank_drainage.DrainInputs`; False where the
+    comparison cannot say (a field that does not compare as one truth value)."""
+    try:
+        return bool(a == b)
+    except (ValueError, TypeError):
+        return False
 
 
 def _size_of(outlet):

@@ -22,17 +22,12 @@ import math
 from kit import units
 from kit.core.findings import Severity, cautions_for, worst
 from kit.panels.base import HtmlView
-from kit.textout import limit_text
+from kit.textout import UNIT_KINDS, display_words, finding_value, limit_text
 
 __all__ = ["FindingsView", "findings_html", "cautions_html", "finding_value_text", "UNIT_KINDS"]
 
-#: A finding's SI unit -> the quantity kind used to show it in a display system.
-UNIT_KINDS = {
-    "m/s": "velocity", "m": "head", "Pa": "pressure_difference", "Pa/m": "pressure_per_length",
-    "m3/s": "flow", "m³/s": "flow", "K": "temperature", "s": "time", "W": "power",
-    "kg/m3": "density", "kg/m³": "density", "Pa*s": "viscosity", "Pa·s": "viscosity",
-    "m2/s": "kinematic_viscosity", "m²/s": "kinematic_viscosity",
-}
+#: A finding's SI unit -> the quantity kind used to show it (kept here for callers).
+UNIT_KINDS = UNIT_KINDS
 
 _STYLE = """<style>
 .hl-findings table{border-collapse:collapse;font-size:0.92em}
@@ -62,6 +57,15 @@ def finding_value_text(value: float, unit: str, system: str = "SI") -> str:
     return units.fmt(x, kind, system)
 
 
+def _value_cell(f, system: str) -> str:
+    """A finding's value in the display system, pressures gauge or absolute; '—' if none."""
+    try:
+        text = finding_value(f, system).removeprefix("= ")
+    except (TypeError, ValueError):
+        text = ""
+    return text or "—"
+
+
 def findings_html(findings, system: str = "SI") -> str:
     """The findings as an HTML table, one row per finding with class hl-pass/hl-check/hl-fail."""
     rows = []
@@ -69,11 +73,11 @@ def findings_html(findings, system: str = "SI") -> str:
         sev = Severity(f.severity)
         cells = [
             f'<td class="hl-status">{html.escape(sev.value.upper())}</td>',
-            f"<td>{html.escape(f.subject)}</td>",
+            f"<td>{html.escape(display_words(f.subject, system))}</td>",
             f"<td>{html.escape(f.quantity)}</td>",
-            f"<td>{html.escape(finding_value_text(f.value, f.unit, system))}</td>",
+            f"<td>{html.escape(_value_cell(f, system))}</td>",
             f"<td>{html.escape(limit_text(f, system))}</td>",
-            f"<td>{html.escape(f.rule)}</td>",
+            f"<td>{html.escape(display_words(f.rule, system))}</td>",
             f'<td class="hl-source">{html.escape(f.source)}</td>',
         ]
         rows.append(f'<tr class="hl-{sev.value}">{"".join(cells)}</tr>')

@@ -94,6 +94,7 @@ from kit.panels.scenario_text import (
 from kit.panels.tables import Column, ResultsTable
 from kit.panels.workspace import status_html
 from kit.studies import line_sizing as ls
+from kit.textout import display_words
 
 __all__ = ["LineSizingApp", "BoreChart", "CANDIDATE_COLUMNS", "BATCH_COLUMNS", "CRITERIA_NOTE"]
 
@@ -778,12 +779,14 @@ class LineSizingApp(widgets.VBox):
         label = st.inputs.duty.label + ": "
         for r, c in zip(rows, st.result.candidates, strict=True):
             r["verdict_text"] = r["verdict"].upper()
+            verdict = c.verdict   # a property that takes the worst of the findings: once
             r["why"] = c.error or "; ".join(dict.fromkeys(
-                f.rule.removeprefix(label).split(";")[0] for f in c.findings
-                if f.severity.value == c.verdict)) or "all criteria met"
+                display_words(f.rule.removeprefix(label).split(";")[0], self.system)
+                for f in c.findings if f.severity.value == verdict)) or "all criteria met"
         self.table.value = tuple(rows)
+        reason = display_words(st.result.reason, self.system)
         self.reason.value = (f'<span class="hl-reason-text"><b>Recommended:</b> '
-                             f"{html.escape(st.result.reason)}</span>")
+                             f"{html.escape(reason)}</span>")
         cands = st.result.candidates
         options = [(f"{c.pipe.label} — {c.verdict.upper()}"
                     + ("  (recommended)" if i == st.result.recommended else ""), c.pipe.nominal)

@@ -9,8 +9,12 @@
 // Draws are queued, one figure per animation frame: when one change redraws several charts,
 // the first is painted before the next is drawn (a long chain of redraws would otherwise
 // hold every chart back until the last one is done). A chart with no size (hidden, not yet
-// attached) is drawn once it gets one. The figure div's data-last-draw attribute says how the
-// last draw was made: "new", "react" or "paths" (the fast path below).
+// attached) is drawn once it gets one. A chart already drawn that is out of view (scrolled
+// away, in a closed tab) is redrawn when it comes into view, not before: when the same figure
+// shows in two places (a workspace and a narrative cell) only the one on screen is drawn on a
+// change, and the other follows when it is scrolled to. The figure div's data-last-draw
+// attribute says how the last draw was made: "new", "react" or "paths" (the fast path below);
+// data-in-view says whether the chart was on screen at its last check ("1"/"0").
 
 const LOADING = "__headlinePlotlyLoading";
 
@@ -68,15 +72,18 @@ function schedule(view) {
 
 async function pump() {
   const view = queue.shift();
+  let drew = false;
   if (view) {
     try {
       // a draw that never settles (its chart removed mid-way) must not stall the page's queue
-      await Promise.race([view.draw(), new Promise((r) => setTimeout(r, STALL_MS))]);
+      drew = await Promise.race([view.draw(), new Promise((r) => setTimeout(() => r(true), STALL_MS))]);
     } catch (err) {
       view.fail(err);
     }
   }
-  if (queue.length) {
+  if (queue.length && !drew) {
+    setTimeout(pump, 0);    // nothing was drawn (out of view, no size): no frames to wait for
+  } else if (queue.length) {
     // let the browser paint what was just drawn before the next figure: two frames, as
     // the fast path's paths are written in a frame callback of their own (d3 transition)
     requestAnimationFrame(() => requestAnimationFrame(() => setTimeout(pump, 0)));
@@ -148,16 +155,26 @@ export default {
     note.className = "hl-plot-message";
     el.appendChild(div);
     el.appendChild(note);
+    // layout and style containment: a redraw re-lays out this chart, not the notebook around
+    // it (measured in headless Chromium beside 6,000 other elements, a fast-path redraw of the
+    // line-sizing bore chart took ~15 % less with it, in 3 of 4 paired runs)
+    el.style.contain = "layout style";
     let drawn = false;
     let dirty = true;
     let shown = null;     // signature of what is drawn
     let alive = true;
     let Plotly = null;
+    let inView = null;    // unknown until the IntersectionObserver first reports
 
     const view = {
+      // true when a figure was drawn (the queue then lets the browser paint it)
       async draw() {
-        if (!alive || !dirty) return;
-        if (!div.isConnected || div.clientWidth === 0) return;   // drawn when it gets a size
+        if (!alive || !dirty) return false;
+        if (!div.isConnected || div.clientWidth === 0) return false;   // drawn when sized
+        if (drawn && inView === false) {
+          logEvent("deferred", id);
+          return false;   // out of view: redrawn when it comes into view
+        }
         Plotly = Plotly || (await plotlyFor(model));
         dirty = false;
         const fig = figureOf(model, div);
@@ -182,6 +199,7 @@ export default {
         div.dataset.lastDraw = how;   // "new", "react" or "paths" (the fast path)
         logEvent("drawn:" + how, id);
         note.textContent = "";
+        return true;
       },
       fail(err) {
         dirty = true;
@@ -214,11 +232,22 @@ export default {
       }
     });
     ro.observe(div);
+    // on screen or not (scroll containers and closed tabs clip); a chart that comes into
+    // view with a change kept back is redrawn then
+    const io = new IntersectionObserver((entries) => {
+      for (const e of entries) {
+        inView = e.isIntersecting;
+        div.dataset.inView = inView ? "1" : "0";
+        if (inView && dirty) schedule(view);
+      }
+    });
+    io.observe(div);
     schedule(view);
 
     return () => {
       alive = false;
       ro.disconnect();
+      io.disconnect();
       const i = queue.indexOf(view);
       if (i >= 0) queue.splice(i, 1);
       if (Plotly && drawn) Plotly.purge(div);

@@ -14,7 +14,9 @@ computed figure back to the kernel (tens of kB per chart). Here:
   a change sends only that trait, and nothing comes back;
 - in the browser, redraws are queued one figure per animation frame, so that when one input
   redraws several charts the first is painted before the next is drawn; a hidden chart is
-  drawn once it has a size (``plot_view.js``).
+  drawn once it has a size; a chart already drawn that is out of view (scrolled away, in a
+  closed tab) is redrawn when it comes into view, so a figure shown in two places (the
+  workspace and its narrative cell) costs one draw per change, not two (``plot_view.js``).
 
 Values are converted to JSON here (numpy arrays to lists; NaN and infinities to ``null``,
 which plotly draws as a gap). Axes get ``ticklabeloverflow='allow'`` unless the layout says

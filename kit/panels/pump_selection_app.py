@@ -18,6 +18,14 @@ Sections (each a widget the notebook shows in its own cell):
 - ``comparison``: the candidates side by side, and every operating point (``hl-candidates``,
   ``hl-points``);
 - ``control_view``: throttling against speed control for the recommended pump (``hl-control``);
+- ``profile_view``: pressure along the suction and discharge lines at every band condition,
+  with the atmospheric and vapour-pressure lines (``hl-line-profile``;
+  :func:`kit.panels.pump_profiles.profile_figure`);
+- ``duties``: a :class:`~kit.panels.pump_duties.PumpDutiesView` — set composition
+  (``hl-pump-set``), staging chart (``hl-staging-chart``), staging steps, energy per strategy
+  (``hl-energy-table``) — and ``load_profile``, a
+  :class:`~kit.panels.load_profile.LoadProfileEditor` (``hl-load-profile``) whose edits are
+  written into ``[load_profile]`` and re-run the study;
 - ``findings``: a :class:`~kit.panels.findings_view.FindingsView` with the cautions;
 - ``save_view``: a path and a "Save scenario" button writing :meth:`PumpSelectionApp.to_scenario`
   (CSS ``hl-save``, ``hl-save-path``, ``hl-save-button``, ``hl-save-message``).
@@ -48,8 +56,16 @@ from kit.panels.charts import to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
+from kit.panels.load_profile import LoadProfileEditor
 from kit.panels.plot_view import PlotView
+from kit.panels.pump_duties import (
+    PumpDutiesView,
+    set_figure,
+    staging_figure,
+    viscous_figure,
+)
 from kit.panels.pump_editor import PumpEditor
+from kit.panels.pump_profiles import profile_figure
 from kit.panels.pump_system import PumpSystemInputs, with_values
 from kit.panels.scenario_text import SaveRow, default_save_path
 from kit.panels.tables import Column, results_table_html, unit_label
@@ -250,6 +266,14 @@ class PumpSelectionApp(widgets.VBox):
         self.points_table.add_class("hl-points")
         self.control_table = widgets.HTML("")
         self.control_table.add_class("hl-control")
+        #: pressure along the lines at each band condition (a PlotView)
+        self.profile_plot = PlotView()
+        #: the pump set, staging chart, steps and energy (kit.panels.pump_duties)
+        self.duties = PumpDutiesView(None, self.display)
+        lp = self.scenario.doc.get("load_profile") or {}
+        #: the load profile, editable (written into [load_profile] on each accepted edit)
+        self.load_profile = LoadProfileEditor(lp.get("flow", []), lp.get("hours", []),
+                                              system=self.display)
         self.findings = FindingsView(topics=CAUTION_TOPICS, system=self.display)
         #: The workspace's one-line status: the recommended pump's verdict, operating flow,
         #: flow against the BEP flow and least NPSH margin (CSS ``hl-ps-status``).
@@ -257,7 +281,8 @@ class PumpSelectionApp(widgets.VBox):
         self.status.add_class("hl-ps-status")
         self._workspace = None
         self.refusals = Refusals((self.plot, self.candidates, self.points_table,
-                                  self.control_table, self.findings, self.status),
+                                  self.control_table, self.findings, self.status,
+                                  self.profile_plot, self.duties),
                                  system=lambda: self.display)
         #: The banner over the results: what is refused and that the results are stale
         #: (CSS ``hl-stale-banner``, ``hl-app-message``).
@@ -275,6 +300,16 @@ class PumpSelectionApp(widgets.VBox):
             self.style, self.message, widgets.HTML("<b>Candidates over the band</b>"), self.candidates,
             widgets.HTML("<b>Every operating point</b>"), self.points_table])
         self.control_view = widgets.VBox([self.style, self.control_table])
+        self.profile_view = widgets.VBox([self.message, self.profile_plot])
+        self.profile_view.add_class("hl-line-profile")
+        #: set composition and the load profile (the inputs of the staging study)
+        self.set_view = widgets.VBox([self.style, self.message, self.duties.composition,
+                                      self.duties.set_chart])
+        #: the staging chart and steps, and the energy per strategy
+        self.staging_view = widgets.VBox([self.style, self.message, self.duties.chart,
+                                          self.duties.steps])
+        self.energy_view = widgets.VBox([self.style, self.message, self.load_profile,
+                                         self.duties.energy, self.duties.checks])
         self.switch = DisplaySwitch([], system=self.display)
         self.save_row = SaveRow(self.to_scenario, default_save_path(scenario))
         self.save_view = widgets.VBox([
@@ -282,8 +317,10 @@ class PumpSelectionApp(widgets.VBox):
                          "temperatures and every pump as edited, written into a scenario file; "
                          "other keys kept as they were)</span>"), self.save_row])
         super().__init__([self.switch, self.inputs, self.chart, self.comparison,
-                          self.control_view, self.findings, self.save_view])
-        for w in (self, self.inputs, self.comparison, self.control_view, self.save_view):
+                          self.control_view, self.profile_view, self.set_view,
+                          self.staging_view, self.energy_view, self.findings, self.save_view])
+        for w in (self, self.inputs, self.comparison, self.control_view, self.save_view,
+                  self.set_view, self.staging_view, self.energy_view):
             w.add_class("hl-pump-app")
         self.switch.targets.append(self)
         self._render()
@@ -296,6 +333,26 @@ class PumpSelectionApp(widgets.VBox):
         self.editor.observe(self._on_pump, names="value")
         self.choice.observe(self._on_choice, names="value")
         self.system_inputs.observe(self._on_system)
+        self.load_profile.observe(self._on_load_profile, names="value")
+
+    def _on_load_profile(self, change) -> None:
+        """A step of the load profile edited: written into ``[load_profile]``; the reader's
+        refusal (a repeated flow, more than 8784 h a year) is shown beside the table."""
+        if self._busy:
+            return
+        ed = self.load_profile
+
+        def apply():
+            if not ed.valid:
+                raise InvalidInput("a load-profile box is refused (its message is beside it)")
+            flows, hours = ed.texts
+            try:
+                scenario = pump_inputs.with_load_profile(self.scenario, flows, hours)
+                return self._run(scenario, self.pumps)
+            except KIT_ERRORS as exc:
+                raise Refusal(ed, str(exc)) from exc
+
+        self._accept(self.refusals.attempt(apply))
 
     def _on_temperature(self, change) -> None:
         if self._busy:
@@ -431,6 +488,9 @@ class PumpSelectionApp(widgets.VBox):
         self._draw()
         self._render_status()
         self._tables()
+        s = self.study
+        self.duties.show(s.duties, currency=s.currency, tariff=s.tariff)
+        self.profile_plot.show(profile_figure(s, self.display))
         fs = sorted(self.results.findings, key=lambda f: -Severity(f.severity).rank)
         self.findings.show(fs)
 
@@ -546,8 +606,15 @@ class PumpSelectionApp(widgets.VBox):
             sections = [sys_in[0], Section("Liquid", [self.t_min, self.t_max]),
                         Section("Pump datasheets", [self.choice, self.editor]), *sys_in[1:]]
             tabs = [("Candidates", self.candidates), ("Operating points", self.points_table),
-                    ("Throttling or speed", self.control_table), ("Findings", self.findings),
-                    ("Save", self.save_row)]
+                    ("Throttling or speed", self.control_table),
+                    ("Line pressure", self.profile_plot),
+                    ("Pump set and staging", widgets.VBox([self.duties.composition,
+                                                           self.duties.set_chart,
+                                                           self.duties.chart,
+                                                           self.duties.steps])),
+                    ("Load and energy", widgets.VBox([self.load_profile, self.duties.energy,
+                                                      self.duties.checks])),
+                    ("Findings", self.findings), ("Save", self.save_row)]
             ws = Workspace(sections, self.plot, self.status, tabs,
                            header=[self.style, self.switch, self.message])
             ws.add_class("hl-pump-app")
@@ -625,6 +692,9 @@ class PumpSelectionApp(widgets.VBox):
         for f in (self.t_min, self.t_max, *self.system_inputs.fields):
             if not f.valid or (f.value is None and not f.optional):
                 raise InputError(f.field, f.text, f"cannot be saved: {f.error or 'not valid'}")
+        if self.load_profile.rows and not self.load_profile.valid:
+            raise InputError("load profile", "", "has a step refused (see beside the table); "
+                             "it cannot be saved")
         if self.editor.value is None:
             name = self.pumps[int(self.choice.value)].name
             raise InputError(f"pump '{name}'", "", "has an input refused (see beside the "
@@ -637,17 +707,35 @@ class PumpSelectionApp(widgets.VBox):
         for w in (self.t_min, self.t_max, self.editor):
             w.set_system(system)
         self.system_inputs.set_system(system)
+        self.load_profile.set_system(system)
+        self.duties.system = system
         self.findings.set_system(system)
         self._render()
 
     def static_figures(self) -> list:
-        """The chart as a static ``plotly.graph_objects.Figure`` (for the record)."""
+        """The charts as static ``plotly.graph_objects.Figure`` objects (for the record): the
+        pump curves on the band with NPSH, the pressure along the lines at each band
+        condition, and — when the scenario has them — the staging chart, the unlike units'
+        combined curve and the viscosity correction."""
         import plotly.graph_objects as go
 
         fig = go.Figure(self.figure)
         fig.update_layout(title=dict(text=f"{self.scenario.title}: pump curves, system band "
                                           "and NPSH"))
-        return [fig]
+        out = [fig, profile_figure(self.study, self.display, title=(
+            f"{self.scenario.title}: pressure along the suction and discharge lines"))]
+        d = self.study.duties
+        if d is not None and d.staging is not None:
+            out.append(staging_figure(d, self.display, title=(
+                f"{self.scenario.title}: staging along the system curve")))
+        if d is not None and not d.identical:
+            out.append(set_figure(d, self.display, title=(
+                f"{self.scenario.title}: unlike units and their combined curve")))
+        if d is not None and d.viscous:
+            out.append(viscous_figure(d, self.display, title=(
+                f"{self.scenario.title}: pump curves corrected for viscosity (ANSI/HI 9.6.7, "
+                "from memory)")))
+        return out
 
     def summary_text(self) -> str:
         """The scenario's text summary (kit.textout.summary) for the current results."""

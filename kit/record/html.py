@@ -311,6 +311,7 @@ def _references(findings) -> dict:
 
 def _findings(data: dict, res, refs: dict) -> str:
     from kit.results import group_findings
+    from kit.textout import display_words
 
     system = str(data.get("header", {}).get("display_system", "SI"))
     if not res.findings:
@@ -325,7 +326,7 @@ def _findings(data: dict, res, refs: dict) -> str:
     th = "".join(f'<th scope="col">{_esc(h)}</th>' for h in heads)
     for owner, role, groups in group_findings(res):
         tag = {"selected": " — selected design", "alternative": " — not selected"}.get(role, "")
-        out.append(f"<h3>{_esc(owner)}{_esc(tag)}</h3>")
+        out.append(f"<h3>{_esc(display_words(owner, system))}{_esc(tag)}</h3>")
         if not groups:
             out.append("<p>No findings.</p>")
             continue
@@ -334,10 +335,11 @@ def _findings(data: dict, res, refs: dict) -> str:
                        key=lambda g: -g.worst.severity.rank)
         for g in shown:
             f = g.worst
-            cond = f.subject if g.n == 1 else f"{f.subject} (worst of {g.n})"
+            subject = display_words(f.subject, system)
+            cond = subject if g.n == 1 else f"{subject} (worst of {g.n})"
             rows.append(f'<tr class="finding"><td>{_sev(g.severity)}</td><td>{_esc(g.quantity)}'
                         f"</td><td>{_esc(_finding_display(f, system))}</td>"
-                        f"<td>{_esc(f.limit)}</td><td>{_esc(cond)}</td>"
+                        f"<td>{_esc(_limit_display(f, system))}</td><td>{_esc(cond)}</td>"
                         f"<td>[{refs[(f.rule, f.source)]}]</td></tr>")
         passed = [g for g in groups if g.severity == "pass"]
         if passed:
@@ -350,8 +352,9 @@ def _findings(data: dict, res, refs: dict) -> str:
         out.append(f"<table class=\"findings-table\">{_cols((11, 19, 14, 17, 30, 9))}"
                    f"<thead><tr>{th}</tr></thead><tbody>" + "".join(rows) + "</tbody></table>")
     # every condition, for the screen only (folded; the JSON file holds them all)
-    rows = [(f.severity.value.upper(), f.subject, f.quantity, _finding_display(f, system),
-             f.limit, f"[{refs[(f.rule, f.source)]}]") for f in res.findings]
+    rows = [(f.severity.value.upper(), display_words(f.subject, system), f.quantity,
+             _finding_display(f, system),
+             _limit_display(f, system), f"[{refs[(f.rule, f.source)]}]") for f in res.findings]
     out.append(f'<details class="all-findings noprint"><summary>All {len(rows)} findings, '
                "one per condition</summary>"
                + _table(["Result", "Subject", "Quantity", "Value", "Limit", "Rule"], rows,
@@ -376,11 +379,24 @@ def _finding_display(f, system: str) -> str:
         return _value_text(_num(f.value), f.unit)
 
 
-def _refs_list(refs: dict) -> str:
+def _limit_display(f, system: str) -> str:
+    """A finding's limit in the record's display system (its words, with every quantity in
+    them converted; the words as computed are in the JSON file)."""
+    from kit.textout import limit_text
+
+    try:
+        return limit_text(f, system)
+    except (KeyError, ValueError, TypeError, ArithmeticError):
+        return f.limit
+
+
+def _refs_list(refs: dict, system: str = "SI") -> str:
+    from kit.textout import display_words
+
     if not refs:
         return ""
-    items = "".join(f'<li value="{n}">{_esc(rule)} — <i>{_esc(src)}</i></li>'
-                    for (rule, src), n in refs.items())
+    items = "".join(f'<li value="{n}">{_esc(display_words(rule, system))} — <i>{_esc(src)}</i>'
+                    "</li>" for (rule, src), n in refs.items())
     return f'<h3>Rules cited by the findings</h3><ol class="refs">{items}</ol>'
 
 
@@ -510,7 +526,7 @@ def render_html(data: dict, figures=()) -> str:
         _table(["Method", "Published reference"],
                [(m.get("name"), m.get("reference")) for m in data.get("methods", [])],
                widths=(30, 70)),
-        _refs_list(refs),
+        _refs_list(refs, str(h.get("display_system", "SI"))),
     ]
     if data.get("tables"):
         parts += ['<h2 id="tables">Tables (SI units)</h2>', _tables(data["tables"])]

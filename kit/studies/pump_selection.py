@@ -102,6 +102,9 @@ class PumpStudy:
     #: pump name -> PumpDutyEnergy at the required duty, throttled (same volume for all)
     duty_energy: dict = field(default_factory=dict)
     duty_energy_text: str = ""
+    #: the set, staging, load-profile energy, minimum flow and viscosity study
+    #: (:class:`kit.studies.pump_duties.DutiesStudy`), None when the scenario asks for none
+    duties: object = None
 
     def pump(self, name: str):
         return next(p for p in self.pumps if p.name == name)
@@ -292,6 +295,9 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
     inp = sc if isinstance(sc, PumpInputs) else read(sc)
     system = system or inp.system
     pumps = list(pumps) if pumps is not None else list(inp.pumps)
+    from kit.studies.pump_duties import duties_study, viscous_pumps
+
+    pumps, viscous, water = viscous_pumps(system, pumps, inp.duties)
     q_req, application = inp.required_flow, inp.npsh_application
     hours, tariff, series = inp.hours, inp.tariff, inp.motor_series
     q_top = max(p.q_end for p in pumps)
@@ -389,9 +395,14 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
             for c, p in zip(band.conditions, pts, strict=True)])
         screen = _discharge_integrity(system, next(p for p in pumps if p.name == rec),
                                       profiles, inp.integrity)
+    duties = None
+    if inp.duties is not None:
+        duties = duties_study(system, pumps, band, q_req, rec, inp.duties, viscous, curves,
+                              water)
     return PumpStudy(system, Q, band, pumps, points, errors, motors, energy, control,
                      control_label, rec, verdicts, q_req, findings, npsha_grid, hours, tariff,
-                     inp.currency, application, profiles, screen, duty_energy, duty_text)
+                     inp.currency, application, profiles, screen, duty_energy, duty_text,
+                     duties)
 
 
 def _duty_energy(system, pumps, band, q_req, hours, motors) -> tuple[dict, str]:
@@ -567,6 +578,10 @@ def results_of(sc, s: PumpStudy) -> Results:
              "input_power": cc.input_power, "energy_kWh": cc.annual_energy_kWh,
              "condition": s.control_label}
             for cc in (c.throttle, c.speed)]
+    if s.duties is not None:
+        from kit.studies.pump_duties import add_results
+
+        add_results(r, s.duties, s.currency)
     r.method("System curve", "Energy equation with head loss; Darcy–Weisbach. "
              + " ".join(FRICTION_METHOD["references"]))
     r.method("Operating point", "Brent, R. P. (1973). Algorithms for Minimization without "

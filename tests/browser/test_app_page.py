@@ -1,5 +1,9 @@
-"""App mode: ``headline app`` serves the line-sizing notebook as a page with no code; its chart
-draws in Chromium and redraws when an input changes."""
+"""App mode: ``headline app`` serves each notebook as a page with no code; on each page the
+workspace chart draws in Chromium and redraws when one input changes (the kernel behind the
+page runs).
+
+Adding a page is one line in :data:`PAGES`: the notebook, the input to change (a CSS selector,
+which match, and the text to type or the option label to choose)."""
 
 from __future__ import annotations
 
@@ -12,6 +16,7 @@ import sys
 import time
 import urllib.error
 import urllib.request
+from dataclasses import dataclass
 from pathlib import Path
 
 import pytest
@@ -77,31 +82,67 @@ def app(tmp_path_factory):
         proc.wait(timeout=10)
 
 
-# the line-sizing app's own selectors (as in test_line_sizing.py)
-V_CHART = ".hl-velocity-chart"
-FLOW = ".hl-flow-design input"
+@dataclass(frozen=True)
+class Page:
+    """One app page and the input the test changes on it.
+
+    ``field`` is a CSS selector; ``nth`` picks among its matches; ``typed`` is entered (then
+    Enter) into a text box, ``option`` chooses the first option of a select whose label
+    starts so. ``chart`` holds the chart that must redraw (the workspace's main chart)."""
+
+    notebook: str
+    field: str
+    nth: int = 0
+    typed: str | None = None
+    option: str | None = None
+    chart: str = ".hl-workspace .hl-workspace-chart"
 
 
-def test_line_sizing_page_draws_its_chart_without_code(app, page, dom):
+#: The pages: one line each.
+PAGES = [
+    Page("line_sizing.ipynb", ".hl-workspace .hl-flow-design input", typed="300 gpm"),
+    Page("pump_selection.ipynb",
+         ".hl-workspace .hl-pump-editor .hl-point-row .hl-point-head input", nth=3, typed="72"),
+    Page("tank_drainage.ipynb", ".hl-workspace .hl-outlet-picker .hl-pipe-picker select",
+         nth=1, option="NPS 1-1/2 "),
+]
+
+
+def _change(page, dom, p: Page) -> None:
+    box = page.locator(p.field).nth(p.nth)
+    box.scroll_into_view_if_needed()
+    if p.option is not None:
+        dom.select_by_label(box, p.option)
+    else:
+        box.fill(p.typed)
+        box.press("Enter")
+
+
+@pytest.mark.parametrize("p", PAGES, ids=[p.notebook.removesuffix(".ipynb") for p in PAGES])
+def test_app_page_draws_and_redraws_without_code(p, app, page, dom):
     url, log, _ = app
     printed = log.read_text()
-    assert f"{url}/voila/render/line_sizing.ipynb" in printed   # the URLs are printed
+    address = f"{url}/voila/render/{p.notebook}"
+    assert address in printed   # the URLs are printed
     t0 = time.monotonic()
-    page.goto(f"{url}/voila/render/line_sizing.ipynb", timeout=300_000)
-    page.wait_for_selector(".js-plotly-plot .main-svg", state="visible", timeout=300_000)
+    page.set_viewport_size({"width": 1366, "height": 900})
+    page.goto(address, timeout=300_000)
+    page.wait_for_selector(f"{p.chart} .js-plotly-plot .main-svg", state="attached",
+                           timeout=300_000)
     seconds = time.monotonic() - t0
-    assert page.locator(".js-plotly-plot").count() >= 1
     # code cells are hidden: no editor and no source text of the first cell on the page
     assert page.locator(".jp-InputArea-editor, .CodeMirror, .cm-editor").count() == 0
     assert "open_scenario(" not in page.content()
-    # an input changed on the app page redraws the chart (the kernel behind the page runs)
-    dom.wait_charts_drawn(page, V_CHART)
-    old = dom.paths(page, V_CHART)
-    box = page.locator(FLOW).first
-    box.fill("300 gpm")
-    box.press("Enter")
-    dom.wait_paths_changed(page, V_CHART, old, timeout=60_000)
-    assert dom.paths(page, V_CHART) != old
+    # the workspace in view; its chart drawn; then one input changed redraws it
+    page.locator(p.chart).first.scroll_into_view_if_needed()
+    dom.wait_charts_drawn(page, p.chart)
+    old = dom.paths(page, p.chart)
+    _change(page, dom, p)
+    page.locator(p.chart).first.scroll_into_view_if_needed()
+    dom.wait_paths_changed(page, p.chart, old, timeout=60_000)
+    assert dom.paths(page, p.chart) != old
+    assert dom.text(page, ".hl-workspace .hl-app-message") == ""
     ARTIFACTS.mkdir(exist_ok=True)
-    page.screenshot(path=str(ARTIFACTS / "app-line-sizing.png"), full_page=True)
-    print(f"line-sizing app page: first chart after {seconds:.1f} s")
+    name = p.notebook.removesuffix(".ipynb")
+    page.screenshot(path=str(ARTIFACTS / f"app-{name}.png"), full_page=False)
+    print(f"\n{name} app page: first chart after {seconds:.1f} s")

@@ -409,3 +409,38 @@ def test_save_button_writes_refuses_silent_overwrite_and_reports_errors(app, tmp
     row.path.value = str(tmp_path)
     row.button.click()
     assert "hl-error-text" in row.message.value and "folder" in row.message.value
+
+
+# ------------------------------------------------------------------ latency: steady axes, cache
+
+def test_time_axis_holds_while_the_curves_fit_it_and_a_size_tried_before_is_not_drained_again(
+        app):
+    """An outlet size tried and tried back keeps the time axis (the browser then moves the
+    traces only) and reuses the computation; the record's figures keep tight ranges; a
+    drain much shorter than the axis re-tightens it."""
+    nominal = app.outlet.pipe.nominal
+    first = nominal.value
+    values = [v for _label, v in nominal.options]
+    smaller = values[values.index(first) - 1]
+    x0 = app.level_chart.ranges["x"]
+    nominal.value = smaller                      # longer drain: the axis grows
+    x1 = app.level_chart.ranges["x"]
+    assert x1[1] > x0[1]
+    n = app.recomputes
+    nominal.value = first                        # back: shorter drain inside the axis
+    assert app.level_chart.ranges["x"] == x1 and app.flow_chart.ranges["x"] == x1
+    assert app.recomputes == n                   # the first size was computed before
+    t_end = float(app.study.result.time[-1])
+    assert t_end < x1[1]
+    record_x = drain_figures(app.study, "SI")[0].layout.xaxis.range
+    assert record_x[1] == pytest.approx(x0[1] / 60.0, rel=1e-9)   # minutes, tight
+    # a much bigger outlet: the drain is far shorter than half the axis -> tight again
+    nominal.value = values[-1]
+    from kit.panels.drain_app import chart_parts
+
+    tight = chart_parts(app.study)[0][1]
+    assert tight[1] < 0.5 * x1[1]
+    assert app.level_chart.ranges["x"] == pytest.approx(tight, rel=1e-12)
+    # the level axis is always the tank's own
+    assert app.level_chart.ranges["y"] == (app.study.inputs.tank.h_min,
+                                           app.study.inputs.tank.h_max)

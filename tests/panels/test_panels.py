@@ -249,7 +249,8 @@ def test_fluid_picker_refuses_frozen_glycol_and_bad_concentration():
     f = FluidPicker()
     f.family.value = "glycol solution"
     f.concentration.set_text("80 %")
-    assert f.value is None and "'concentration' must be at least 0 % and at most 60 %, not 80 %" in f.concentration.error
+    assert f.value is None
+    assert "'concentration' must be at least 0 % and at most 60 %, not 80 %" in f.concentration.error
     f.concentration.set_text("30 %")
     f.temperature.set_text("-40 degC")
     assert f.value is None and "freezing point" in f.temperature.error

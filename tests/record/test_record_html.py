@@ -136,3 +136,97 @@ def test_sections_and_severity_words(page_plain):
     assert "HL-0042" in text and "54.0 m³/h" in text
     assert "Swamee, P.K., Jain, A.K. (1976)" in text
     assert "Local codes" in text                       # the general caution
+
+
+# ------------------------------------------------------------------ findings in display units
+#: A number followed by an SI unit as the core writes it (outside quoted names).
+_SI_TEXT = re.compile(r"(?<![\w.])[-+−]?\d[\d.]*(?:e[-+]?\d+)?\s?"
+                      r"(?:Pa|kPa|MPa|m³/s|m3/s|m/s|m³/h|kW|W|mm|m|°C|K)(?![\w/²³·])")
+
+
+def _unquoted(text: str) -> str:
+    """Text without the names the user typed in single quotes (kept as typed) and without
+    the sources (citations, quoted as written: ``<i>`` in the references, ``hl-source``
+    cells in the panel)."""
+    import html as _html
+
+    text = re.sub(r'<i>.*?</i>|<td class="hl-source">.*?</td>', " ", text, flags=re.S)
+    return re.sub(r"(?<!\w)'[^']*'(?!\w)", "''",
+                  _html.unescape(re.sub(r"<[^>]+>", " ", text)))
+
+
+@pytest.mark.parametrize("name", ["tallow_creek_rising_main", "kestrel_ridge_booster",
+                                  "marlow_vale_cip_dump", "brackenmoor_siphon_dump",
+                                  "harlow_flats_diesel_transfer"])
+def test_us_findings_carry_no_si_text(name):
+    """A scenario shown in US units: the findings of the record, the text summary and the
+    findings panel show every value, limit, subject and rule in US units, each pressure
+    gauge or absolute (issue 12)."""
+    from pathlib import Path
+
+    from kit import scenario
+    from kit.panels.findings_view import findings_html
+    from kit.results import compute
+    from kit.textout import grouped_findings_text, summary
+
+    sc = scenario.load(Path(__file__).resolve().parents[2] / "scenarios" / f"{name}.toml")
+    sc.set("display.system", "US")
+    res = compute(sc)
+    assert res.findings
+    page = build_record(sc, res).to_html()
+    part = page[page.index('id="findings"'):page.index('id="results"')]
+    refs = re.search(r'<ol class="refs">.*?</ol>', page, re.S)
+    refs = refs.group(0) if refs else ""
+    for where, text in (("record findings", part), ("record references", refs),
+                        ("panel", findings_html(res.findings, "US")),
+                        ("summary", "\n".join(grouped_findings_text(res, "US")))):
+        left = _SI_TEXT.findall(_unquoted(text))
+        assert not left, (where, sorted(set(left))[:10])
+    # every pressure value of the findings says gauge or absolute (or is a difference)
+    full = summary(sc, res, "US", full=True)
+    assert " Pa" not in _unquoted(full.split("Findings", 1)[1].split("Methods", 1)[0])
+
+
+def test_limits_in_display_units():
+    """Limits are written from their words' numbers in the display system with sensible
+    digits; a pressure says gauge or absolute. Conversions: 1 US gpm = 3.785411784 L/min,
+    1 psi = 6894.757 Pa, 1 hp = 745.7 W (NIST SP 811)."""
+    from kit.core.findings import Finding, Severity
+    from kit.textout import display_words, finding_value, limit_text
+
+    def f(quantity, value, unit, limit, **kw):
+        return Finding(Severity.PASS, "pump 'P 150 mm' at 10 °C", quantity, value, unit,
+                       limit, "rule", "common practice, no source", **kw)
+
+    flow = f("flow, lowest over band", 0.03, "m³/s", ">= 0.025 m³/s")
+    assert limit_text(flow, "US") == ">= 396 gpm"        # 0.025 m³/s = 396.3 gpm
+    assert limit_text(flow, "SI") == ">= 90 m³/h"
+    rating = f("pipe pressure (gauge)", 5e5, "Pa", "<= 1.96e+06 Pa gauge (class rating)",
+               high=1.96e6)
+    assert limit_text(rating, "US") == "<= 284 psig (class rating)"   # 1.96 MPa = 284.3 psi
+    assert limit_text(rating, "SI") == "<= 1960 kPa(g) (class rating)"
+    assert finding_value(rating, "US") == "= 72.5 psig"
+    vap = f("lowest pressure (absolute)", 5e4, "Pa", "> 2985.8 Pa (vapour pressure)")
+    assert limit_text(vap, "US") == "> 0.433 psia (vapour pressure)"
+    assert finding_value(vap, "SI") == "= 50.0 kPa(a)"
+    crest = f("gauge pressure", -9.2e4, "Pa", ">= 0 Pa(g)")
+    assert (limit_text(crest, "US"), finding_value(crest, "US")) == (">= 0 psig", "= -13.3 psig")
+    vent = f("vent pressure drop", 36.0, "Pa", "<= 250 Pa vacuum (gauge, below atmospheric)")
+    assert limit_text(vent, "US").startswith("<= 0.0363 psi vacuum")
+    assert finding_value(vent, "US") == "= 0.00522 psi"            # a drop: no tag
+    motor = f("shaft power", 1e4, "W", "<= 11.1855 kW motor rating")
+    assert limit_text(motor, "US") == "<= 15 hp motor rating"      # 15 hp = 11.19 kW
+    assert limit_text(motor, "SI") == "<= 11.1855 kW motor rating"  # SI words kept
+    band = f("velocity", 2.0, "m/s", "1–3 m/s", low=1.0, high=3.0)
+    assert limit_text(band, "US") == "3.28–9.84 ft/s"
+    assert limit_text(f("NPSH margin", 2.0, "m", ">= 1 m"), "SI") == ">= 1 m"
+    # words without a quantity stay; bounds without words are written from the numbers
+    assert limit_text(f("x", 1.0, "-", "POR 0.7–1.2, AOR 0.5–1.3"), "US") == \
+        "POR 0.7–1.2, AOR 0.5–1.3"
+    assert limit_text(f("velocity", 2.0, "m/s", "criteria band", low=1.0), "US") == \
+        ">= 3.28 ft/s"
+    # names in quotes are the user's, kept as typed; section numbers are not quantities
+    assert display_words("pump 'P 150 mm' at 10 °C", "US") == "pump 'P 150 mm' at 50 °F"
+    assert display_words("ASME B31.3 §304.1.2 straight pipe; c = 1.5 mm", "US") == \
+        "ASME B31.3 §304.1.2 straight pipe; c = 0.0591 in"
+    assert display_words("93.31 kPa(abs) = -6.995 kPa(g)", "US") == "13.5 psia = -1.01 psig"

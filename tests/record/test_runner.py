@@ -109,6 +109,56 @@ def test_notebook_location(monkeypatch, tmp_path):
     assert notebooks_dir() == HERE.parents[1] / "notebooks"
     monkeypatch.setenv("HEADLINE_NOTEBOOKS", str(tmp_path))
     assert notebook_for("tank_drainage") == tmp_path / "tank_drainage.ipynb"
-    assert set(NOTEBOOKS) == {"line_sizing", "pump_selection", "tank_drainage"}
+    assert {"line_sizing", "pump_selection", "tank_drainage"} <= set(NOTEBOOKS)
     with pytest.raises(UnknownChoiceError, match="'scenario kind' must be one of 'line_sizing'"):
         notebook_for("boiler")
+
+
+WIDGET_CELLS = [
+    "import ipywidgets as w\nfrom kit.panels.plot_view import PlotView\n"
+    "view = PlotView({'data': [{'type': 'scatter', 'x': [0, 1], 'y': [3, 4], 'name': 'zq-trace'}],"
+    " 'layout': {'title': {'text': 'zq chart'}}})\n"
+    "box = w.VBox([w.HTML('<b>zq-html</b>'), w.Text(description='zq field', value='350 gpm'),"
+    " w.Dropdown(options=['NPS 2', 'NPS 3'], value='NPS 3', description='zq size'),"
+    " w.Label('zq-hidden', layout=w.Layout(display='none')), view])\nbox",
+    "view2 = PlotView({'data': [{'type': 'bar', 'x': [1], 'y': [2]}], 'layout': {}})\nview2",
+] + CELLS[:1] + CELLS[1:]
+
+
+class _Refs(__import__("html.parser").parser.HTMLParser):
+    """Every script src, link href and other URL attribute of a page."""
+
+    def __init__(self):
+        super().__init__()
+        self.urls = []
+
+    def handle_starttag(self, tag, attrs):
+        for k, v in attrs:
+            if k in ("src", "href", "data") and v:
+                self.urls.append((tag, k, v))
+
+
+def test_notebook_html_works_offline(setup, capsys):
+    """The notebook's HTML export loads nothing from a network: no widget renderer, require.js
+    or MathJax from a CDN; widgets are drawn from their stored state (values, HTML, charts
+    by plotly.js carried once), hidden widgets are left out."""
+    tmp, sc = setup
+    nb = _notebook(tmp / "wid.ipynb", WIDGET_CELLS)
+    out = tmp / "out"
+    code = run_main([str(sc), "--out", str(out), "--notebook", str(nb)])
+    assert code == 0, capsys.readouterr().err
+    page = (out / "wid.html").read_text(encoding="utf-8")
+    parser = _Refs()
+    parser.feed(page)
+    remote = [u for u in parser.urls if u[2].lower().lstrip().startswith(("http:", "https:", "//"))]
+    assert remote == [], remote
+    assert "embed-amd" not in page and "require.min.js" not in page and "unpkg" not in page
+    assert "application/vnd.jupyter.widget-state+json" not in page
+    for text in ("<b>zq-html</b>", "zq field", "350 gpm", "zq size", "NPS 3", "zq-trace",
+                 "zq chart"):
+        assert text in page, text
+    assert page.count("zq-hidden") == 1          # in the cell's source only, not drawn
+    assert page.count("Plotly.newPlot.apply") == 2
+    from plotly.offline import get_plotlyjs_version
+
+    assert page.count(f"plotly.js v{get_plotlyjs_version()}") == 1

@@ -1,0 +1,145 @@
+"""Pressure along the suction and discharge lines, per band condition, as a chart.
+
+:func:`profile_figure` draws the profiles the pump study computed for the recommended pump
+at each band condition's operating point (:func:`kit.core.system.band_profiles`; the energy
+equation with losses, station to station): on top the **gauge pressure** at each station
+against the distance along the suction line and then the discharge line, with the
+atmospheric line (0 gauge) and the vapour-pressure line of the warmest liquid, the
+sub-atmospheric stations marked; below, the line's elevation and the hydraulic grade line
+(HGL) and energy grade line (EGL) of each condition. Nothing is computed here but the
+shift of the discharge distances by the suction line's length.
+
+Example
+-------
+>>> from kit.notebook import open_scenario
+>>> from kit.studies.pump_selection import study
+>>> fig = profile_figure(study(open_scenario("kestrel_ridge_booster.toml")))
+>>> any("below atmospheric" in (t.name or "") for t in fig.data)
+True
+"""
+
+from __future__ import annotations
+
+import html
+
+import numpy as np
+
+from kit.panels.charts import axis_title, to_display
+
+__all__ = ["profile_figure", "profile_series", "CONDITION_COLOURS"]
+
+#: Our own colours, one per band condition (8).
+CONDITION_COLOURS = ("#1f4e9c", "#5b86c9", "#2f7d32", "#7fb27f", "#c0392b", "#e07b6f",
+                     "#8e44ad", "#b68ccb")
+
+
+def profile_series(bp) -> dict:
+    """One band condition's stations joined: suction then discharge, the discharge's
+    distances shifted by the suction line's length; a None gap at the pump (SI arrays:
+    x, z [m], p_gauge [Pa], hgl, egl [m]; names)."""
+    xs, zs, ps, hs, es, names = [], [], [], [], [], []
+    offset = 0.0
+    for prof in (bp.suction, bp.discharge):
+        if prof is None:
+            continue
+        if xs:
+            for a in (xs, zs, ps, hs, es):
+                a.append(np.nan)
+            names.append("")
+        for st in prof.stations:
+            xs.append(offset + st.x)
+            zs.append(st.z)
+            ps.append(st.p_gauge)
+            hs.append(st.hgl)
+            es.append(st.egl)
+            names.append(f"{prof.line}: {st.name}")
+        offset += prof.stations[-1].x
+    return {"x": np.array(xs), "z": np.array(zs), "p_gauge": np.array(ps),
+            "hgl": np.array(hs), "egl": np.array(es), "names": names}
+
+
+def profile_figure(s, system: str = "SI", title: str = ""):
+    """The line-pressure chart of a :class:`kit.studies.pump_selection.PumpStudy`
+    (see the module docstring), a plotly ``Figure``."""
+    import plotly.graph_objects as go
+    from plotly.subplots import make_subplots
+
+    fig = make_subplots(rows=2, cols=1, shared_xaxes=True, row_heights=[0.55, 0.45],
+                        vertical_spacing=0.08,
+                        subplot_titles=("pressure along the lines (gauge)",
+                                        "elevation, HGL and EGL"))
+    fig.update_layout(template="plotly_white", height=720,
+                      margin=dict(l=70, r=20, t=70, b=140), hovermode="closest",
+                      legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
+                                  yref="container"),
+                      title=dict(text=title or "pressure along the suction and discharge lines "
+                                 f"({html.escape(str(s.recommended or 'no pump recommended'))}"
+                                 " at each band condition)"))
+    runs = [b for b in s.profiles if b.suction is not None or b.discharge is not None]
+    if not runs:
+        fig.add_annotation(text="no profile: no pump is recommended, or no band condition "
+                           "has an operating point", showarrow=False, x=0.5, y=0.5,
+                           xref="paper", yref="paper")
+        return fig
+
+    def fx(x):
+        return to_display(x, "length", system)
+
+    def fp(p):
+        return to_display(p, "pressure_difference", system)
+
+    def fz(z):
+        return to_display(z, "elevation", system)
+
+    x_all, low_x, low_p, low_t = [], [], [], []
+    first = profile_series(runs[0])
+    for i, b in enumerate(runs):
+        ser = profile_series(b)
+        col = CONDITION_COLOURS[i % len(CONDITION_COLOURS)]
+        lab = b.condition.label
+        x_all.append(ser["x"])
+        hover = [f"{html.escape(n)}<br>{html.escape(lab)}" for n in ser["names"]]
+        fig.add_trace(go.Scatter(x=fx(ser["x"]), y=fp(ser["p_gauge"]), mode="lines+markers",
+                                 line=dict(color=col, width=1.6), marker=dict(size=5),
+                                 name=lab, legendgroup=f"c{i}", text=hover,
+                                 hovertemplate="%{text}<br>%{y:.4g}<extra></extra>"), 1, 1)
+        fig.add_trace(go.Scatter(x=fx(ser["x"]), y=fz(ser["hgl"]), mode="lines",
+                                 line=dict(color=col, width=1.2), legendgroup=f"c{i}",
+                                 showlegend=False, name=f"HGL: {lab}", text=hover,
+                                 hovertemplate="HGL %{y:.4g}<br>%{text}<extra></extra>"), 2, 1)
+        fig.add_trace(go.Scatter(x=fx(ser["x"]), y=fz(ser["egl"]), mode="lines",
+                                 line=dict(color=col, width=1, dash="dot"),
+                                 legendgroup=f"c{i}", showlegend=False, name=f"EGL: {lab}",
+                                 hoverinfo="skip"), 2, 1)
+        neg = np.isfinite(ser["p_gauge"]) & (ser["p_gauge"] < 0)
+        low_x += list(ser["x"][neg])
+        low_p += list(ser["p_gauge"][neg])
+        low_t += [f"{ser['names'][j]}<br>{lab}: below atmospheric" for j in np.flatnonzero(neg)]
+    xa = np.concatenate(x_all)
+    xa = xa[np.isfinite(xa)]
+    span = [float(xa.min()), float(xa.max())]
+    fig.add_trace(go.Scatter(x=fx(span), y=[0.0, 0.0], mode="lines",
+                             line=dict(color="black", width=1.2, dash="dash"),
+                             name="atmospheric (0 gauge)", hoverinfo="skip"), 1, 1)
+    pv = getattr(s.system.state(s.system.T_max), "pv", None)
+    if pv is not None:
+        pvg = float(pv) - s.system.p_baro
+        fig.add_trace(go.Scatter(x=fx(span), y=fp([pvg, pvg]), mode="lines",
+                                 line=dict(color="#c0392b", width=1.5),
+                                 name="vapour pressure, warmest liquid (gauge)",
+                                 hovertemplate="vapour pressure %{y:.4g}<extra></extra>"), 1, 1)
+    fig.add_trace(go.Scatter(x=fx(low_x), y=fp(low_p), mode="markers",
+                             marker=dict(color="#c0392b", size=13, symbol="x-thin-open",
+                                         line=dict(width=2.5, color="#c0392b")),
+                             name="below atmospheric: air valve / vacuum rating", text=low_t,
+                             hovertemplate="%{text}<extra></extra>"), 1, 1)
+    fig.add_trace(go.Scatter(x=fx(first["x"]), y=fz(first["z"]), mode="lines",
+                             line=dict(color="#555", width=3), name="pipe elevation",
+                             hoverinfo="skip"), 2, 1)
+    fig.update_yaxes(title_text=axis_title("pressure (gauge)", "pressure_difference", system),
+                     row=1, col=1)
+    fig.update_yaxes(title_text=axis_title("elevation, HGL, EGL", "elevation", system),
+                     row=2, col=1)
+    fig.update_xaxes(title_text=axis_title("distance along suction, then discharge",
+                                           "length", system), row=2, col=1)
+    return fig
