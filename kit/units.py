@@ -687,7 +687,10 @@ def fmt(value_si: float, kind: str, system: str = "SI", unit: str | None = None,
     if value_si is None:
         return "—"
     unit = unit or display_unit(kind, system)
-    value = convert(float(value_si), kind, unit)
+    value_si = float(value_si)
+    if abs(value_si) < _ROUND_OFF and digits <= 6 and kind not in _EXACT_KINDS:
+        value_si = 0.0  # solver round-off (a flow of 1e-16 m³/s) is shown as the zero it is
+    value = convert(value_si, kind, unit)
     text = _round(value, digits)
     if not with_unit or not unit:
         return text
@@ -696,6 +699,12 @@ def fmt(value_si: float, kind: str, system: str = "SI", unit: str | None = None,
         pretty = _ABS_TAG[unit]
     return f"{text} {pretty}" if pretty != "%" else f"{text} %"
 
+
+#: SI magnitudes below this are round-off of a zero: no liquid-piping quantity of any kind is
+#: meaningful there (1e-10 m³/s is 0.4 mL/h; 1e-10 Pa, 1e-10 m, 1e-10 W).
+_ROUND_OFF = 1e-10
+#: Kinds a tiny value of which is still meaningful (plain numbers, ratios, temperatures).
+_EXACT_KINDS = frozenset(("temperature", "dimensionless", "fraction"))
 
 #: A bare pressure unit -> its absolute spelling (what :func:`fmt` writes for kind "pressure").
 _ABS_TAG = {"Pa": "Pa(a)", "hPa": "hPa(a)", "kPa": "kPa(a)", "MPa": "MPa(a)", "bar": "bara",

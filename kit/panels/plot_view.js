@@ -138,7 +138,9 @@ function fitHeight(div) {
 }
 
 function figureOf(model, div) {
-  const layout = Object.assign({}, model.get("figure_layout") || {});
+  // a deep copy: plotly writes into the nested axis objects, and an unchanged layout is not
+  // sent again, so a shallow copy would let each redraw start from the one before it
+  const layout = JSON.parse(JSON.stringify(model.get("figure_layout") || {}));
   const template = model.get("figure_template");
   if (template && Object.keys(template).length) layout.template = template;
   const h = div ? fitHeight(div) : null;

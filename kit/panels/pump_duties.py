@@ -20,8 +20,9 @@ computes hydraulics: the study does):
 - ``viscous_chart`` (``hl-viscous-chart``): each corrected candidate's water curve (dashed)
   against its viscous curve (solid), head and efficiency (:func:`viscous_figure`).
 
-:func:`staging_figure` builds the chart as a plain plotly ``Figure`` (the record's static
-figure too).
+:func:`staging_spec` (and ``set_spec``, ``viscous_spec``) build the charts as plain dicts for
+the views; :func:`staging_figure` and the others turn them into static plotly ``Figure``
+objects for the record.
 
 Example
 -------
@@ -42,9 +43,11 @@ import numpy as np
 from kit import units
 from kit.panels.charts import axis_title, to_display
 from kit.panels.plot_view import PlotView
+from kit.panels.pump_profiles import as_figure, scatter, subplot_layout
 from kit.panels.tables import Column, results_table_html
 
-__all__ = ["PumpDutiesView", "staging_figure", "viscous_figure", "set_figure", "STEP_COLOURS",
+__all__ = ["PumpDutiesView", "staging_figure", "viscous_figure", "set_figure",
+           "staging_spec", "set_spec", "viscous_spec", "STEP_COLOURS",
            "STRATEGY_LABELS", "STEP_COLUMNS", "ENERGY_COLUMNS", "STRATEGY_COLUMNS"]
 
 #: Our own colours, one per number of pumps running.
@@ -98,39 +101,48 @@ def chart_condition(d) -> int:
     return int(np.argmax(d.staging.H_req[:, -1]))
 
 
-def staging_figure(d, system: str = "SI", title: str = ""):
-    """The staging chart of a duties study as a plotly ``Figure`` (see the module
-    docstring); a figure with a note when there is no staging study."""
-    import plotly.graph_objects as go
+def _frame(height: int, bottom: int, title: str) -> dict:
+    """A one-chart layout as a plain dict (the staging and set charts)."""
+    return {"height": height, "margin": dict(l=70, r=20, t=60, b=bottom),
+            "legend": dict(orientation="h", x=0.0, y=0.0, yanchor="bottom", yref="container"),
+            "hovermode": "closest", "title": dict(text=title), "xaxis": {}, "yaxis": {}}
 
-    fig = go.Figure()
-    fig.update_layout(template="plotly_white", height=560, margin=dict(l=70, r=20, t=60, b=130),
-                      legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
-                                  yref="container"), hovermode="closest",
-                      title=dict(text=title or "staging along the system curve"))
+
+def staging_figure(d, system: str = "SI", title: str = ""):
+    """The staging chart of a duties study as a static plotly ``Figure`` (see the module
+    docstring and :func:`staging_spec`); a figure with a note when there is no staging
+    study."""
+    return as_figure(staging_spec(d, system, title))
+
+
+def staging_spec(d, system: str = "SI", title: str = "") -> dict:
+    """The staging chart as a plain dict for :meth:`kit.panels.plot_view.PlotView.show`."""
+    layout = _frame(560, 130, title or "staging along the system curve")
+    data: list = []
+    spec = {"data": data, "layout": layout}
     s = None if d is None else d.staging
     if s is None:
         why = ("no staging study: " + "; ".join(d.notes)) if d is not None and d.notes else \
             "no staging study in this scenario (give [pump_set], [drive], [staging] or " \
             "[load_profile])"
-        fig.add_annotation(text=html.escape(why), showarrow=False, x=0.5, y=0.5,
-                           xref="paper", yref="paper")
-        return fig
+        layout["annotations"] = [dict(text=html.escape(why), showarrow=False, x=0.5, y=0.5,
+                                      xref="paper", yref="paper")]
+        return spec
     c = chart_condition(d)
     unit = d.unit
     Q = s.Q
     fx = lambda q: _f(q, "flow", system)  # noqa: E731
     fh = lambda h: _f(h, "head", system)  # noqa: E731
-    fig.add_trace(go.Scatter(x=fx(Q), y=fh(s.H_req.min(axis=0)), mode="lines",
-                             line=dict(color="rgba(90,90,90,0.5)", width=1), showlegend=False,
-                             hoverinfo="skip", name="required head, least"))
-    fig.add_trace(go.Scatter(x=fx(Q), y=fh(s.H_req.max(axis=0)), mode="lines", fill="tonexty",
-                             fillcolor="rgba(120,120,120,0.15)",
-                             line=dict(color="rgba(90,90,90,0.5)", width=1),
-                             name="required head over the band", hoverinfo="skip"))
-    fig.add_trace(go.Scatter(x=fx(Q), y=fh(s.H_req[c]), mode="lines",
-                             line=dict(color="black", width=2),
-                             name=f"required head: {s.labels[c]}"))
+    xq = fx(Q)
+    data.append(scatter(xq, fh(s.H_req.min(axis=0)), mode="lines",
+                        line=dict(color="rgba(90,90,90,0.5)", width=1), showlegend=False,
+                        hoverinfo="skip", name="required head, least"))
+    data.append(scatter(xq, fh(s.H_req.max(axis=0)), mode="lines", fill="tonexty",
+                        fillcolor="rgba(120,120,120,0.15)",
+                        line=dict(color="rgba(90,90,90,0.5)", width=1),
+                        name="required head over the band", hoverinfo="skip"))
+    data.append(scatter(xq, fh(s.H_req[c]), mode="lines", line=dict(color="black", width=2),
+                        name=f"required head: {s.labels[c]}"))
     q = np.linspace(0.0, unit.q_end, 81)
     h = unit.head(q)
     r_hi = s.speed_range.max_ratio if s.strategy != "fixed" else 1.0
@@ -138,63 +150,63 @@ def staging_figure(d, system: str = "SI", title: str = ""):
     for k in range(1, s.n_duty + 1):
         col = STEP_COLOURS[(k - 1) % len(STEP_COLOURS)]
         on = s.count[c] == k
-        fig.add_trace(go.Scatter(
-            x=fx(k * r_hi * q), y=fh(r_hi ** 2 * h), mode="lines", legendgroup=f"k{k}",
-            line=dict(color=col, width=2),
-            name=f"{k} running at {r_hi:.0%} speed"))
+        data.append(scatter(fx(k * r_hi * q), fh(r_hi ** 2 * h), mode="lines",
+                            legendgroup=f"k{k}", line=dict(color=col, width=2),
+                            name=f"{k} running at {r_hi:.0%} speed"))
         h_top = max(h_top, float(r_hi ** 2 * h[0]))
         rs = s.speed_ratio[c][on]
         rs = rs[np.isfinite(rs)]
         if rs.size and s.strategy == "all_vfd":
             r0 = float(rs.min())
-            fig.add_trace(go.Scatter(
-                x=fx(k * r0 * q), y=fh(r0 ** 2 * h), mode="lines", legendgroup=f"k{k}",
-                line=dict(color=col, width=1.5, dash="dash"),
-                name=f"{k} running at {r0:.0%} speed (lowest of the step)"))
+            data.append(scatter(fx(k * r0 * q), fh(r0 ** 2 * h), mode="lines",
+                                legendgroup=f"k{k}", line=dict(color=col, width=1.5,
+                                                               dash="dash"),
+                                name=f"{k} running at {r0:.0%} speed (lowest of the step)"))
         text = [f"{k} running, speed {r:.0%}" for r in s.speed_ratio[c][on]]
-        fig.add_trace(go.Scatter(
-            x=fx(Q[on]), y=fh(s.H_req[c][on]), mode="markers", legendgroup=f"k{k}",
-            marker=dict(color=col, size=6), name=f"operating path, {k} running",
-            text=text, hovertemplate="%{text}<extra></extra>", showlegend=False))
+        data.append(scatter(fx(Q[on]), fh(s.H_req[c][on]), mode="markers", legendgroup=f"k{k}",
+                            marker=dict(color=col, size=6), name=f"operating path, {k} running",
+                            text=text, hovertemplate="%{text}<extra></extra>",
+                            showlegend=False))
     up = s.stage_up[c]
     up = up[np.isfinite(up)]
     if up.size:
         hu = np.interp(up, Q, s.H_req[c])
-        fig.add_trace(go.Scatter(x=fx(up), y=fh(hu), mode="markers",
-                                 marker=dict(color="black", size=12, symbol="x"),
-                                 name="stage up"))
+        data.append(scatter(fx(up), fh(hu), mode="markers",
+                            marker=dict(color="black", size=12, symbol="x"), name="stage up"))
     prof = d.inputs.profile
     if prof:
         pq = np.array([p for p, _ in prof])
         ph = np.interp(pq, Q, s.H_req[c])
-        fig.add_trace(go.Scatter(
-            x=fx(pq), y=fh(ph), mode="markers+text",
+        data.append(scatter(
+            fx(pq), fh(ph), mode="markers+text",
             marker=dict(color="#d68910", size=12, symbol="diamond",
                         line=dict(color="black", width=1)),
             text=[f"{t:,.0f} h" for _, t in prof], textposition="top center",
             name="load-profile steps (hours a year)"))
     x_top = float(fx(s.n_duty * r_hi * unit.q_end)) * 1.02
-    fig.update_xaxes(title_text=axis_title("flow", "flow", system), range=[0, x_top])
-    fig.update_yaxes(title_text=axis_title("head", "head", system),
-                     range=[0, float(fh(1.1 * h_top))])
-    return fig
+    layout["xaxis"] = {"title": {"text": axis_title("flow", "flow", system)},
+                       "range": [0, x_top]}
+    layout["yaxis"] = {"title": {"text": axis_title("head", "head", system)},
+                       "range": [0, float(fh(1.1 * h_top))]}
+    return spec
 
 
 def set_figure(d, system: str = "SI", title: str = ""):
-    """The set's curves as a plotly ``Figure``: each distinct unit's datasheet curve, the
-    running duty units' combined curve (flows added at equal head, each unit's check valve
-    closed above its shut-off), and at each band condition the set's operating point with
-    every running unit's flow at that head (a closed unit at zero flow)."""
-    import plotly.graph_objects as go
+    """The set's curves as a static plotly ``Figure`` (see :func:`set_spec`)."""
+    return as_figure(set_spec(d, system, title))
 
-    fig = go.Figure()
-    fig.update_layout(template="plotly_white", height=480, margin=dict(l=70, r=20, t=60,
-                                                                       b=110),
-                      legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
-                                  yref="container"), hovermode="closest",
-                      title=dict(text=title or "the set: units and their combined curve"))
+
+def set_spec(d, system: str = "SI", title: str = "") -> dict:
+    """The set's curves as a plain dict for :meth:`kit.panels.plot_view.PlotView.show`:
+    each distinct unit's datasheet curve, the running duty units' combined curve (flows
+    added at equal head, each unit's check valve closed above its shut-off), and at each
+    band condition the set's operating point with every running unit's flow at that head
+    (a closed unit at zero flow)."""
+    layout = _frame(480, 110, title or "the set: units and their combined curve")
+    data: list = []
+    spec = {"data": data, "layout": layout}
     if d is None:
-        return fig
+        return spec
     fx = lambda q: _f(q, "flow", system)  # noqa: E731
     fh = lambda h: _f(h, "head", system)  # noqa: E731
     seen = []
@@ -204,78 +216,82 @@ def set_figure(d, system: str = "SI", title: str = ""):
         seen.append(u)
         col = STEP_COLOURS[(len(seen) - 1) % len(STEP_COLOURS)]
         q = np.linspace(0.0, u.q_end, 81)
-        fig.add_trace(go.Scatter(x=fx(q), y=fh(u.head(q)), mode="lines",
-                                 line=dict(color=col, width=1.5, dash="dash"),
-                                 name=f"unit: {u.name}"))
+        data.append(scatter(fx(q), fh(u.head(q)), mode="lines",
+                            line=dict(color=col, width=1.5, dash="dash"),
+                            name=f"unit: {u.name}"))
     run = d.running
     q = np.linspace(0.0, run.q_end, 121)
-    fig.add_trace(go.Scatter(x=fx(q), y=fh(run.head(q)), mode="lines",
-                             line=dict(color="black", width=2.5),
-                             name=f"running set: {d.n_duty} duty unit(s) combined"))
+    data.append(scatter(fx(q), fh(run.head(q)), mode="lines",
+                        line=dict(color="black", width=2.5),
+                        name=f"running set: {d.n_duty} duty unit(s) combined"))
     pts = [sd for sd in d.set_points if sd is not None]
     text = [f"{html.escape(lab)}" for lab, sd in zip(d.labels, d.set_points, strict=True)
             if sd is not None]
-    fig.add_trace(go.Scatter(x=fx([sd.Q for sd in pts]), y=fh([sd.H for sd in pts]),
-                             mode="markers", marker=dict(color="black", size=9),
-                             name="set operating points (band)", text=text,
-                             hovertemplate="%{text}<extra></extra>"))
+    data.append(scatter(fx([sd.Q for sd in pts]), fh([sd.H for sd in pts]),
+                        mode="markers", marker=dict(color="black", size=9),
+                        name="set operating points (band)", text=text,
+                        hovertemplate="%{text}<extra></extra>"))
     mq = [m.Q for sd in pts for m in sd.members]
     mh = [sd.H for sd in pts for m in sd.members]
     mt = [f"{html.escape(m.name)}: {m.status}" for sd in pts for m in sd.members]
     closed = [m.status != "running" for sd in pts for m in sd.members]
-    fig.add_trace(go.Scatter(x=fx(mq), y=fh(mh), mode="markers", text=mt,
-                             marker=dict(color=["#c0392b" if c else "#555" for c in closed],
-                                         size=8, symbol=["x" if c else "circle-open"
-                                                         for c in closed]),
-                             name="each unit at the set's head (× check valve closed)",
-                             hovertemplate="%{text}<extra></extra>"))
-    fig.update_xaxes(title_text=axis_title("flow", "flow", system), rangemode="tozero")
-    fig.update_yaxes(title_text=axis_title("head", "head", system), rangemode="tozero")
-    return fig
+    data.append(scatter(fx(mq), fh(mh), mode="markers", text=mt,
+                        marker=dict(color=["#c0392b" if c else "#555" for c in closed],
+                                    size=8, symbol=["x" if c else "circle-open"
+                                                    for c in closed]),
+                        name="each unit at the set's head (× check valve closed)",
+                        hovertemplate="%{text}<extra></extra>"))
+    layout["xaxis"] = {"title": {"text": axis_title("flow", "flow", system)},
+                       "rangemode": "tozero"}
+    layout["yaxis"] = {"title": {"text": axis_title("head", "head", system)},
+                       "rangemode": "tozero"}
+    return spec
 
 
 def viscous_figure(d, system: str = "SI", title: str = ""):
     """Water curves against the curves corrected for viscosity (head above, efficiency
-    below), a plotly ``Figure``: the study's water and corrected curves, as fitted."""
-    import plotly.graph_objects as go
-    from plotly.subplots import make_subplots
+    below), a static plotly ``Figure`` (see :func:`viscous_spec`)."""
+    return as_figure(viscous_spec(d, system, title))
 
-    fig = make_subplots(rows=2, cols=1, shared_xaxes=True, row_heights=[0.6, 0.4],
-                        vertical_spacing=0.08, subplot_titles=(
-                            "head: water (dashed) and corrected (solid)",
-                            "efficiency: water (dashed) and corrected (solid)"))
-    fig.update_layout(template="plotly_white", height=600, margin=dict(l=70, r=20, t=70,
-                                                                       b=110),
-                      legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
-                                  yref="container"),
-                      title=dict(text=title or "viscosity correction (ANSI/HI 9.6.7, "
-                                 "from memory)"))
+
+def viscous_spec(d, system: str = "SI", title: str = "") -> dict:
+    """The viscosity-correction chart as a plain dict for
+    :meth:`kit.panels.plot_view.PlotView.show`: the study's water and corrected curves, as
+    fitted, head above and efficiency below."""
+    layout = subplot_layout((0.6, 0.4), 0.08, ("head: water (dashed) and corrected (solid)",
+                                               "efficiency: water (dashed) and corrected "
+                                               "(solid)"))
+    layout.update(height=600, margin=dict(l=70, r=20, t=70, b=110),
+                  legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
+                              yref="container"),
+                  title=dict(text=title or "viscosity correction (ANSI/HI 9.6.7, "
+                             "from memory)"))
+    data: list = []
     pairs = [] if d is None else list(zip(d.viscous, d.viscous_water, strict=True))
     for i, (vc, w) in enumerate(pairs):
         col = STEP_COLOURS[i % len(STEP_COLOURS)]
         for curve, dash, what in ((w, "dash", "water"), (vc.curve, "solid",
                                                           f"{vc.nu * 1e6:.4g} cSt")):
             qq = np.linspace(0.0, curve.q_end, 81)
-            fig.add_trace(go.Scatter(x=_f(qq, "flow", system), y=_f(curve.head(qq), "head",
-                                                                    system),
-                                     mode="lines", line=dict(color=col, dash=dash, width=2),
-                                     name=f"{vc.curve.name}: {what}"), 1, 1)
-            fig.add_trace(go.Scatter(x=_f(curve.flow, "flow", system),
-                                     y=_f(curve.head_points, "head", system), mode="markers",
-                                     marker=dict(color=col, size=6), showlegend=False,
-                                     hoverinfo="skip"), 1, 1)
+            data.append(scatter(_f(qq, "flow", system), _f(curve.head(qq), "head", system),
+                                mode="lines", line=dict(color=col, dash=dash, width=2),
+                                name=f"{vc.curve.name}: {what}"))
+            data.append(scatter(_f(curve.flow, "flow", system),
+                                _f(curve.head_points, "head", system), mode="markers",
+                                marker=dict(color=col, size=6), showlegend=False,
+                                hoverinfo="skip"))
             if curve.has_efficiency:
-                fig.add_trace(go.Scatter(x=_f(qq, "flow", system),
-                                         y=100 * np.clip(curve.efficiency(qq), 0, 1),
-                                         mode="lines", line=dict(color=col, dash=dash),
-                                         showlegend=False,
-                                         name=f"{vc.curve.name}: {what} efficiency"), 2, 1)
-    fig.update_yaxes(title_text=axis_title("head", "head", system), row=1, col=1,
-                     rangemode="tozero")
-    fig.update_yaxes(title_text="efficiency [%]", row=2, col=1, rangemode="tozero")
-    fig.update_xaxes(title_text=axis_title("flow", "flow", system), row=2, col=1,
-                     rangemode="tozero")
-    return fig
+                data.append(scatter(_f(qq, "flow", system),
+                                    100 * np.clip(curve.efficiency(qq), 0, 1), row=2,
+                                    mode="lines", line=dict(color=col, dash=dash),
+                                    showlegend=False,
+                                    name=f"{vc.curve.name}: {what} efficiency"))
+    layout["yaxis"].update(title={"text": axis_title("head", "head", system)},
+                           rangemode="tozero")
+    layout["yaxis2"].update(title={"text": "efficiency [%]"}, rangemode="tozero")
+    layout["xaxis2"].update(title={"text": axis_title("flow", "flow", system)},
+                            rangemode="tozero")
+    return {"data": data, "layout": layout}
 
 
 class PumpDutiesView(widgets.VBox):
@@ -320,14 +336,14 @@ class PumpDutiesView(widgets.VBox):
         """Show ``duties`` (None: say there is nothing to show)."""
         self.duties, self.currency, self.tariff = duties, currency, tariff
         sysm = self.system
-        self.plot.show(staging_figure(duties, sysm))
+        self.plot.show(staging_spec(duties, sysm))
         self.set_chart.layout.display = None if duties is not None else "none"
         if duties is not None:
-            self.set_plot.show(set_figure(duties, sysm))
+            self.set_plot.show(set_spec(duties, sysm))
         has_v = duties is not None and bool(duties.viscous)
         self.viscous_chart.layout.display = None if has_v else "none"
         if has_v:
-            self.viscous_plot.show(viscous_figure(duties, sysm))
+            self.viscous_plot.show(viscous_spec(duties, sysm))
         if duties is None:
             none = ("<div class='hl-note'>This scenario gives no pump set, staging, load "
                     "profile, minimum flow or viscosity correction ([pump_set], [drive], "

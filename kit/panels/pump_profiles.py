@@ -21,12 +21,16 @@ True
 from __future__ import annotations
 
 import html
+import json
+from functools import lru_cache
 
 import numpy as np
 
 from kit.panels.charts import axis_title, to_display
+from kit.panels.plot_view import plain, props
 
-__all__ = ["profile_figure", "profile_series", "CONDITION_COLOURS"]
+__all__ = ["profile_figure", "profile_spec", "profile_series", "subplot_layout", "scatter",
+           "as_figure", "CONDITION_COLOURS"]
 
 #: Our own colours, one per band condition (8).
 CONDITION_COLOURS = ("#1f4e9c", "#5b86c9", "#2f7d32", "#7fb27f", "#c0392b", "#e07b6f",
@@ -58,29 +62,74 @@ def profile_series(bp) -> dict:
             "hgl": np.array(hs), "egl": np.array(es), "names": names}
 
 
-def profile_figure(s, system: str = "SI", title: str = ""):
-    """The line-pressure chart of a :class:`kit.studies.pump_selection.PumpStudy`
-    (see the module docstring), a plotly ``Figure``."""
-    import plotly.graph_objects as go
+def subplot_layout(row_heights: tuple, spacing: float, titles: tuple) -> dict:
+    """The layout of a one-column grid of subplots on a shared x axis, as a plain dict
+    (axis domains, anchors and the titles as annotations; no template): what plotly's
+    ``make_subplots`` gives, built once per grid and copied.
+
+    >>> lay = subplot_layout((0.6, 0.4), 0.08, ("top", "bottom"))
+    >>> lay["yaxis2"]["anchor"], [a["text"] for a in lay["annotations"]]
+    ('x2', ['top', 'bottom'])
+    """
+    return json.loads(_grid_json(tuple(row_heights), float(spacing), tuple(titles)))
+
+
+@lru_cache(maxsize=16)
+def _grid_json(row_heights: tuple, spacing: float, titles: tuple) -> str:
     from plotly.subplots import make_subplots
 
-    fig = make_subplots(rows=2, cols=1, shared_xaxes=True, row_heights=[0.55, 0.45],
-                        vertical_spacing=0.08,
-                        subplot_titles=("pressure along the lines (gauge)",
-                                        "elevation, HGL and EGL"))
-    fig.update_layout(template="plotly_white", height=720,
-                      margin=dict(l=70, r=20, t=70, b=140), hovermode="closest",
-                      legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
-                                  yref="container"),
-                      title=dict(text=title or "pressure along the suction and discharge lines "
-                                 f"({html.escape(str(s.recommended or 'no pump recommended'))}"
-                                 " at each band condition)"))
+    lay = make_subplots(rows=len(row_heights), cols=1, shared_xaxes=True,
+                        row_heights=list(row_heights), vertical_spacing=spacing,
+                        subplot_titles=titles).to_plotly_json()["layout"]
+    lay.pop("template", None)
+    return json.dumps(plain(lay))
+
+
+def scatter(x, y, row: int = 1, **kw) -> dict:
+    """A scatter trace as a plain dict on subplot ``row`` (``props`` names: ``line_width``).
+
+    >>> scatter([0, 1], [2, 3], row=2, mode="lines", line={"color": "red"})["yaxis"]
+    'y2'
+    """
+    tr = {"type": "scatter", "x": x, "y": y, **props(**kw)}
+    if row > 1:
+        tr["xaxis"], tr["yaxis"] = f"x{row}", f"y{row}"
+    return tr
+
+
+def as_figure(spec: dict):
+    """A figure spec (``{"data": [...], "layout": {...}}``) as a static plotly ``Figure``
+    with the kit's template (for the record and for tests)."""
+    import plotly.graph_objects as go
+
+    return go.Figure(data=spec["data"], layout={**spec["layout"], "template": "plotly_white"})
+
+
+def profile_figure(s, system: str = "SI", title: str = ""):
+    """The line-pressure chart of a :class:`kit.studies.pump_selection.PumpStudy`
+    (see the module docstring), a static plotly ``Figure`` (see :func:`profile_spec`)."""
+    return as_figure(profile_spec(s, system, title))
+
+
+def profile_spec(s, system: str = "SI", title: str = "") -> dict:
+    """The line-pressure chart as a plain dict for :meth:`kit.panels.plot_view.PlotView.show`
+    (the data of :func:`profile_figure`, with no plotly objects built)."""
+    layout = subplot_layout((0.55, 0.45), 0.08, ("pressure along the lines (gauge)",
+                                                 "elevation, HGL and EGL"))
+    layout.update(height=720, margin=dict(l=70, r=20, t=70, b=140), hovermode="closest",
+                  legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
+                              yref="container"),
+                  title=dict(text=title or "pressure along the suction and discharge lines "
+                             f"({html.escape(str(s.recommended or 'no pump recommended'))}"
+                             " at each band condition)"))
+    data: list = []
+    spec = {"data": data, "layout": layout}
     runs = [b for b in s.profiles if b.suction is not None or b.discharge is not None]
     if not runs:
-        fig.add_annotation(text="no profile: no pump is recommended, or no band condition "
-                           "has an operating point", showarrow=False, x=0.5, y=0.5,
-                           xref="paper", yref="paper")
-        return fig
+        layout["annotations"].append(dict(
+            text="no profile: no pump is recommended, or no band condition has an operating "
+            "point", showarrow=False, x=0.5, y=0.5, xref="paper", yref="paper"))
+        return spec
 
     def fx(x):
         return to_display(x, "length", system)
@@ -99,18 +148,19 @@ def profile_figure(s, system: str = "SI", title: str = ""):
         lab = b.condition.label
         x_all.append(ser["x"])
         hover = [f"{html.escape(n)}<br>{html.escape(lab)}" for n in ser["names"]]
-        fig.add_trace(go.Scatter(x=fx(ser["x"]), y=fp(ser["p_gauge"]), mode="lines+markers",
-                                 line=dict(color=col, width=1.6), marker=dict(size=5),
-                                 name=lab, legendgroup=f"c{i}", text=hover,
-                                 hovertemplate="%{text}<br>%{y:.4g}<extra></extra>"), 1, 1)
-        fig.add_trace(go.Scatter(x=fx(ser["x"]), y=fz(ser["hgl"]), mode="lines",
-                                 line=dict(color=col, width=1.2), legendgroup=f"c{i}",
-                                 showlegend=False, name=f"HGL: {lab}", text=hover,
-                                 hovertemplate="HGL %{y:.4g}<br>%{text}<extra></extra>"), 2, 1)
-        fig.add_trace(go.Scatter(x=fx(ser["x"]), y=fz(ser["egl"]), mode="lines",
-                                 line=dict(color=col, width=1, dash="dot"),
-                                 legendgroup=f"c{i}", showlegend=False, name=f"EGL: {lab}",
-                                 hoverinfo="skip"), 2, 1)
+        x = fx(ser["x"])
+        data.append(scatter(x, fp(ser["p_gauge"]), mode="lines+markers",
+                            line=dict(color=col, width=1.6), marker=dict(size=5),
+                            name=lab, legendgroup=f"c{i}", text=hover,
+                            hovertemplate="%{text}<br>%{y:.4g}<extra></extra>"))
+        data.append(scatter(x, fz(ser["hgl"]), row=2, mode="lines",
+                            line=dict(color=col, width=1.2), legendgroup=f"c{i}",
+                            showlegend=False, name=f"HGL: {lab}", text=hover,
+                            hovertemplate="HGL %{y:.4g}<br>%{text}<extra></extra>"))
+        data.append(scatter(x, fz(ser["egl"]), row=2, mode="lines",
+                            line=dict(color=col, width=1, dash="dot"),
+                            legendgroup=f"c{i}", showlegend=False, name=f"EGL: {lab}",
+                            hoverinfo="skip"))
         neg = np.isfinite(ser["p_gauge"]) & (ser["p_gauge"] < 0)
         low_x += list(ser["x"][neg])
         low_p += list(ser["p_gauge"][neg])
@@ -118,28 +168,27 @@ def profile_figure(s, system: str = "SI", title: str = ""):
     xa = np.concatenate(x_all)
     xa = xa[np.isfinite(xa)]
     span = [float(xa.min()), float(xa.max())]
-    fig.add_trace(go.Scatter(x=fx(span), y=[0.0, 0.0], mode="lines",
-                             line=dict(color="black", width=1.2, dash="dash"),
-                             name="atmospheric (0 gauge)", hoverinfo="skip"), 1, 1)
+    data.append(scatter(fx(span), [0.0, 0.0], mode="lines",
+                        line=dict(color="black", width=1.2, dash="dash"),
+                        name="atmospheric (0 gauge)", hoverinfo="skip"))
     pv = getattr(s.system.state(s.system.T_max), "pv", None)
     if pv is not None:
         pvg = float(pv) - s.system.p_baro
-        fig.add_trace(go.Scatter(x=fx(span), y=fp([pvg, pvg]), mode="lines",
-                                 line=dict(color="#c0392b", width=1.5),
-                                 name="vapour pressure, warmest liquid (gauge)",
-                                 hovertemplate="vapour pressure %{y:.4g}<extra></extra>"), 1, 1)
-    fig.add_trace(go.Scatter(x=fx(low_x), y=fp(low_p), mode="markers",
-                             marker=dict(color="#c0392b", size=13, symbol="x-thin-open",
-                                         line=dict(width=2.5, color="#c0392b")),
-                             name="below atmospheric: air valve / vacuum rating", text=low_t,
-                             hovertemplate="%{text}<extra></extra>"), 1, 1)
-    fig.add_trace(go.Scatter(x=fx(first["x"]), y=fz(first["z"]), mode="lines",
-                             line=dict(color="#555", width=3), name="pipe elevation",
-                             hoverinfo="skip"), 2, 1)
-    fig.update_yaxes(title_text=axis_title("pressure (gauge)", "pressure_difference", system),
-                     row=1, col=1)
-    fig.update_yaxes(title_text=axis_title("elevation, HGL, EGL", "elevation", system),
-                     row=2, col=1)
-    fig.update_xaxes(title_text=axis_title("distance along suction, then discharge",
-                                           "length", system), row=2, col=1)
-    return fig
+        data.append(scatter(fx(span), fp([pvg, pvg]), mode="lines",
+                            line=dict(color="#c0392b", width=1.5),
+                            name="vapour pressure, warmest liquid (gauge)",
+                            hovertemplate="vapour pressure %{y:.4g}<extra></extra>"))
+    data.append(scatter(fx(low_x), fp(low_p), mode="markers",
+                        marker=dict(color="#c0392b", size=13, symbol="x-thin-open",
+                                    line=dict(width=2.5, color="#c0392b")),
+                        name="below atmospheric: air valve / vacuum rating", text=low_t,
+                        hovertemplate="%{text}<extra></extra>"))
+    data.append(scatter(fx(first["x"]), fz(first["z"]), row=2, mode="lines",
+                        line=dict(color="#555", width=3), name="pipe elevation",
+                        hoverinfo="skip"))
+    layout["yaxis"]["title"] = {"text": axis_title("pressure (gauge)", "pressure_difference",
+                                                   system)}
+    layout["yaxis2"]["title"] = {"text": axis_title("elevation, HGL, EGL", "elevation", system)}
+    layout["xaxis2"]["title"] = {"text": axis_title("distance along suction, then discharge",
+                                                    "length", system)}
+    return spec

@@ -41,6 +41,7 @@ Example
 from __future__ import annotations
 
 import html
+import json
 from functools import lru_cache
 
 import ipywidgets as widgets
@@ -49,6 +50,7 @@ import numpy as np
 from kit import units
 from kit.core.findings import Severity
 from kit.core.operating import BEP_REGIONS
+from kit.core.pump import PumpCurve, PumpSet
 from kit.errors import InputError
 from kit.inputs import pump_selection as pump_inputs
 from kit.panels.base import KIT_ERRORS, InvalidInput, Refusal, Refusals, check_system
@@ -57,7 +59,7 @@ from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
 from kit.panels.findings_view import FindingsView
 from kit.panels.load_profile import LoadProfileEditor
-from kit.panels.plot_view import PlotView
+from kit.panels.plot_view import PlotView, plain
 from kit.panels.pump_duties import (
     PumpDutiesView,
     set_figure,
@@ -65,7 +67,7 @@ from kit.panels.pump_duties import (
     viscous_figure,
 )
 from kit.panels.pump_editor import PumpEditor
-from kit.panels.pump_profiles import profile_figure
+from kit.panels.pump_profiles import as_figure, profile_figure, profile_spec
 from kit.panels.pump_system import PumpSystemInputs, with_values
 from kit.panels.scenario_text import SaveRow, default_save_path
 from kit.panels.tables import Column, results_table_html, unit_label
@@ -183,6 +185,45 @@ def candidates_html(rows, system: str = "SI", caption: str = "") -> str:
             f'{head}</tr></thead><tbody>{"".join(body)}</tbody></table>')
 
 
+#: How many computations :class:`PumpSelectionApp` keeps (going back to inputs tried before
+#: re-renders without running the study again).
+STUDY_CACHE_SIZE = 16
+
+
+def _pump_key(p):
+    """What defines a pump curve or set, as a hashable tuple (None: not known here, so
+    never taken from the cache)."""
+    members = getattr(p, "pumps", None)
+    if isinstance(p, PumpSet):
+        keys = tuple(_pump_key(m) for m in members)
+        return None if None in keys else ("set", p.name, p.arrangement, keys)
+    if not isinstance(p, PumpCurve):
+        return None
+    arrays = tuple(None if a is None else np.asarray(a, dtype=float).tobytes()
+                   for a in (p.flow, p.head_points, p.efficiency_points, p.npshr_points,
+                             p.power_points))
+    return ("curve", p.name, arrays, p.speed_rpm, p.diameter, p.datasheet_speed_rpm,
+            p.datasheet_diameter, p.test_density, p.head_rise_tolerance,
+            tuple(sorted(p.degrees.items())), repr(p.scaling_findings))
+
+
+def _study_key(scenario, pumps):
+    """The study's inputs as a key: the scenario's document (canonical JSON) and source,
+    and each pump's defining data; None when a pump is of a kind not keyed here.
+
+    >>> from kit.notebook import open_scenario
+    >>> from kit.inputs import pump_selection as pi
+    >>> sc = open_scenario("kestrel_ridge_booster.toml")
+    >>> _study_key(sc, pi.read(sc).pumps) == _study_key(sc.copy(), pi.read(sc).pumps)
+    True
+    """
+    keys = tuple(_pump_key(p) for p in pumps)
+    if None in keys:
+        return None
+    doc = json.dumps(scenario.doc, sort_keys=True, default=repr)
+    return (doc, str(scenario.source), keys)
+
+
 class PumpSelectionApp(widgets.VBox):
     """Candidates against the system band; edit a pump or the liquid temperature and see it all.
 
@@ -209,7 +250,8 @@ class PumpSelectionApp(widgets.VBox):
     editor : PumpEditor
     figure : plotly.graph_objects.Figure
         Head and NPSH charts, one figure (two rows on a shared flow axis), as drawn by
-        ``plot`` (a :class:`~kit.panels.plot_view.PlotView`).
+        ``plot`` (a :class:`~kit.panels.plot_view.PlotView`); built on each read from the
+        plain dict the view shows (a static copy).
     message : ipywidgets.HTML
         Study-level message (CSS ``hl-error``): what was refused, with the kit's words.
     """
@@ -221,8 +263,11 @@ class PumpSelectionApp(widgets.VBox):
         self.scenario = scenario.copy()
         self.display = check_system(system or scenario.display_system)
         self.pumps = list(pump_inputs.read(self.scenario).pumps)
-        self.study = ps.study(self.scenario, pumps=self.pumps)
-        self.results = ps.results_of(self.scenario, self.study)
+        #: the last computations: ((document, pumps) key, (study, results)), newest last
+        self._cache: list = []
+        #: how many times the study was run (not taken from the cache)
+        self.recomputes = 0
+        _, _, self.study, self.results = self._run(self.scenario, self.pumps)
         self._busy = False
 
         liq = self.scenario.doc.get("liquid", {})
@@ -244,21 +289,25 @@ class PumpSelectionApp(widgets.VBox):
         self.system_inputs = PumpSystemInputs(self.scenario, self.display,
                                               p_baro=self.study.system.p_baro)
 
-        # The figure is a plain plotly Figure (the model the code edits), shown by a
-        # PlotView: its JSON goes to the browser after each edit (see kit.panels.plot_view).
+        # The chart's frame (subplots, trace styles) is built once with plotly, then kept as
+        # a plain dict; each change fills in the traces' data as plain dicts and shows them
+        # with a PlotView (no plotly objects per change; see kit.panels.plot_view).
         fig = make_subplots(
             rows=2, cols=1, shared_xaxes=True, row_heights=[0.64, 0.36], vertical_spacing=0.07,
             subplot_titles=("pump curves on the system band", "NPSH available and required"))
-        fig.update_layout(height=860, template="plotly_white",
+        fig.update_layout(height=860,
                           margin=dict(l=70, r=20, t=50, b=150),
                           # the legend in the bottom margin (container coordinates): it
                           # never covers the flow axis title, whatever the chart's height
                           legend=dict(orientation="h", x=0.0, y=0.0, yanchor="bottom",
                                       yref="container"),
                           hovermode="closest")
-        self.figure = fig
+        self._build_traces(go, fig)
+        frame = plain(fig.to_plotly_json())
+        frame["layout"].pop("template", None)
+        self._frame = frame
+        self._shown: dict = {}
         self.plot = PlotView()
-        self._build_traces(go)
         self._draw()
         self.candidates = widgets.HTML("")
         self.candidates.add_class("hl-candidates")
@@ -424,10 +473,22 @@ class PumpSelectionApp(widgets.VBox):
             self._busy = False
 
     # ------------------------------------------------------------------ computing
-    @staticmethod
-    def _run(scenario, pumps):
+    def _run(self, scenario, pumps):
+        """(scenario, pumps, study, results): the study and its results taken from the last
+        :data:`STUDY_CACHE_SIZE` computations when the scenario's document and the pumps
+        are the same (both are pure functions of those), else computed and kept."""
+        key = _study_key(scenario, pumps)
+        if key is not None:
+            for k, (seen, out) in enumerate(self._cache):
+                if seen == key:
+                    self._cache.append(self._cache.pop(k))
+                    return (scenario, pumps, *out)
         study = ps.study(scenario, pumps=pumps)
-        return scenario, pumps, study, ps.results_of(scenario, study)
+        out = (study, ps.results_of(scenario, study))
+        self.recomputes += 1
+        if key is not None:
+            self._cache = [*self._cache[-(STUDY_CACHE_SIZE - 1):], (key, out)]
+        return (scenario, pumps, *out)
 
     def _accept(self, out) -> None:
         """Keep an accepted (scenario, pumps, study, results) and redraw; None: refused."""
@@ -442,8 +503,7 @@ class PumpSelectionApp(widgets.VBox):
         self._accept(self.refusals.attempt(lambda: self._run(self.scenario, self.pumps)))
 
     # ------------------------------------------------------------------ drawing
-    def _build_traces(self, go) -> None:
-        fig = self.figure
+    def _build_traces(self, go, fig) -> None:
         n_cond = len(self.study.band.conditions)
         grey = "rgba(90,90,90,0.55)"
         fig.add_trace(go.Scatter(name="system band, lowest", mode="lines", showlegend=False,
@@ -490,12 +550,12 @@ class PumpSelectionApp(widgets.VBox):
         self._tables()
         s = self.study
         self.duties.show(s.duties, currency=s.currency, tariff=s.tariff)
-        self.profile_plot.show(profile_figure(s, self.display))
+        self.profile_plot.show(profile_spec(s, self.display))
         fs = sorted(self.results.findings, key=lambda f: -Severity(f.severity).rank)
         self.findings.show(fs)
 
     def _draw(self) -> None:
-        s, sysm, fig = self.study, self.display, self.figure
+        s, sysm = self.study, self.display
         band = s.band
 
         def fx(q):
@@ -541,28 +601,31 @@ class PumpSelectionApp(widgets.VBox):
             good = s.good(pump.name)
             data.append((np.array([p.Q for p in good]), np.array([p.npsha for p in good])))
             texts[len(data) - 1] = [self._hover(pump.name, p) for p in good]
-        with fig.batch_update():
-            for i, (trace, (x, y)) in enumerate(zip(fig.data, data, strict=True)):
-                trace.x = fx(x)
-                trace.y = fh(y)
-                if i in texts:
-                    trace.text = texts[i]
-            for i, cond in enumerate(band.conditions):
-                fig.data[2 + i].name = f"system: {cond.label}"
-                fig.data[2 + i].hovertemplate = f"{html.escape(cond.label)}<extra></extra>"
-            fig.layout.xaxis2.title.text = f"flow [{unit_label('flow', sysm)}]"
-            fig.layout.yaxis.title.text = f"head [{unit_label('head', sysm)}]"
-            fig.layout.yaxis2.title.text = f"NPSH [{unit_label('head', sysm)}]"
-            q_top = max(float(Q[-1]), max(p.q_end for p in s.pumps))
-            # one range for both rows, from this system's numbers (inside batch_update a
-            # read of fig.layout.xaxis.range gives the range before the batch: the last
-            # system's, which left the NPSH row's axis on the old unit after a switch)
-            x_range = [0, _nice_top(float(fx(q_top)) * 1.02)]
-            fig.layout.xaxis.range = x_range
-            fig.layout.xaxis2.range = x_range
-            fig.layout.yaxis.range = [0, _nice_top(float(fh(1.08 * h_top)))]
-            fig.layout.yaxis2.range = [0, _nice_top(float(fh(1.15 * n_top)))]
-        self.plot.show(fig)
+        frame = self._frame
+        traces = []
+        for i, (base, (x, y)) in enumerate(zip(frame["data"], data, strict=True)):
+            tr = dict(base)
+            tr["x"], tr["y"] = fx(x), fh(y)
+            if i in texts:
+                tr["text"] = texts[i]
+            traces.append(tr)
+        for i, cond in enumerate(band.conditions):
+            traces[2 + i]["name"] = f"system: {cond.label}"
+            traces[2 + i]["hovertemplate"] = f"{html.escape(cond.label)}<extra></extra>"
+        q_top = max(float(Q[-1]), max(p.q_end for p in s.pumps))
+        # one range for both rows, from this system's numbers
+        x_range = [0, _nice_top(float(fx(q_top)) * 1.02)]
+        base = frame["layout"]
+        layout = dict(base)
+        layout["xaxis"] = {**base["xaxis"], "range": x_range}
+        layout["xaxis2"] = {**base["xaxis2"], "range": x_range,
+                            "title": {"text": f"flow [{unit_label('flow', sysm)}]"}}
+        layout["yaxis"] = {**base["yaxis"], "range": [0, _nice_top(float(fh(1.08 * h_top)))],
+                           "title": {"text": f"head [{unit_label('head', sysm)}]"}}
+        layout["yaxis2"] = {**base["yaxis2"], "range": [0, _nice_top(float(fh(1.15 * n_top)))],
+                            "title": {"text": f"NPSH [{unit_label('head', sysm)}]"}}
+        self._shown = {"data": traces, "layout": layout}
+        self.plot.show(self._shown)
 
     def _render_status(self) -> None:
         """The status line: the recommended pump (or the best-ranked one when none passes)
@@ -712,14 +775,17 @@ class PumpSelectionApp(widgets.VBox):
         self.findings.set_system(system)
         self._render()
 
+    @property
+    def figure(self):
+        """The head and NPSH chart as shown, a static plotly ``Figure`` (built on each read)."""
+        return as_figure(self._shown)
+
     def static_figures(self) -> list:
         """The charts as static ``plotly.graph_objects.Figure`` objects (for the record): the
         pump curves on the band with NPSH, the pressure along the lines at each band
         condition, and — when the scenario has them — the staging chart, the unlike units'
         combined curve and the viscosity correction."""
-        import plotly.graph_objects as go
-
-        fig = go.Figure(self.figure)
+        fig = self.figure
         fig.update_layout(title=dict(text=f"{self.scenario.title}: pump curves, system band "
                                           "and NPSH"))
         out = [fig, profile_figure(self.study, self.display, title=(

@@ -61,7 +61,7 @@ from kit.studies.integrity import METHODS as INTEGRITY_METHODS
 from kit.studies.integrity import screen_line
 
 __all__ = ["NetworkStudy", "study", "results_of", "compute", "case_label", "series_branch",
-           "is_closed_circuit", "tables", "VALVE_CASES"]
+           "is_closed_circuit", "column_upstream", "tables", "VALVE_CASES"]
 
 #: Labels of the control-valve sizing cases.
 VALVE_CASES = ("minimum", "normal", "maximum")
@@ -464,12 +464,17 @@ def _integrity(inp, net, cases, findings) -> dict:
             "loop is long or its valves close fast", "kit.studies.network"))
     top = max(inp.boundaries, key=lambda b: b.level_high + (b.pressure - inp.p_baro) /
               (rho * G))
+    columns = [column_upstream(r) for r in cases.values()]
     for i, k in enumerate(net.links):
         if not isinstance(k, PipeLink):
             continue
         ends = [e for e in (k.from_node, k.to_node) if e in z]
         z_low = min(z[e] for e in ends) if ends else top.level_low
         V = [abs(float(r.velocity[i])) for r in cases.values() if np.isfinite(r.velocity[i])]
+        # the column a valve at this pipe's downstream end stops: the whole flowing path back
+        # to a fixed head or a pump, not this pipe alone (the largest over the band)
+        L_col = max([c[k.name][0] for c in columns if k.name in c] or [k.segment.length])
+        V_col = max([c[k.name][1] for c in columns if k.name in c] or [0.0])
         P = [r.p_abs[names.index(e)] for r in cases.values()
              for e in (k.from_node, k.to_node)]
         P = [float(p) for p in P if np.isfinite(p)]
@@ -485,7 +490,7 @@ def _integrity(inp, net, cases, findings) -> dict:
         try:
             scr = screen_line(
                 f"link '{k.name}'", k.segment.pipe, inp.liquid, T, inp.p_baro, pv,
-                length=k.segment.length, velocity=max(V, default=0.0),
+                length=L_col, velocity=max(max(V, default=0.0), V_col),
                 running_pressure=max(P, default=inp.p_baro), opts=inp.integrity,
                 standing=(max(top.level_high - z_low, 0.0), top.pressure),
                 shutoff=None if shut is None else (shut[1], shut[2], shut[3] - z_low),
@@ -497,6 +502,59 @@ def _integrity(inp, net, cases, findings) -> dict:
             continue
         out[k.name] = scr
         findings += list(scr.findings)
+    return out
+
+
+def column_upstream(res) -> dict:
+    """For every flowing pipe, the liquid column a valve at its downstream end would stop.
+
+    Returns ``{pipe name: (L [m], V [m/s])}``: ``L`` is the length of the flowing path from a
+    fixed head or a pump's discharge to the pipe's downstream end that carries the most
+    momentum Σ Lᵢ|Vᵢ|, and ``V`` = Σ Lᵢ|Vᵢ| / L, its length-weighted mean velocity. The
+    screen uses ``L`` for the critical time 2L/a and, with the larger of ``V`` and the pipe's
+    own velocity, bounds the slow-closure rise 2ρ Σ Lᵢ Vᵢ / t_c (Michaud 1878 summed over a
+    series path; Wylie & Streeter 1993, ch. 1) from above. Heads fall along the flow in every
+    passive link, so visiting nodes by falling head orders the paths (a pump restarts them).
+
+    >>> from kit.notebook import scenario_path
+    >>> from kit import scenario as scn
+    >>> s = study(scn.load(scenario_path("fenwick_yard_chilled_water.toml")))
+    >>> L, V = column_upstream(s.design)["AHU-4 branch"]
+    >>> bool(L > s.network.link("AHU-4 branch").segment.length)
+    True
+    """
+    net = res.net
+    names = net.node_names + net.boundary_names
+    idx = {n: i for i, n in enumerate(names)}
+    L = np.zeros(len(names))
+    M = np.zeros(len(names))
+    into: dict = {}
+    for i, k in enumerate(net.links):
+        q = float(res.Q[i])
+        if isinstance(k, PumpLink) or not np.isfinite(q) or abs(q) < 1e-12:
+            continue
+        a, b = (k.from_node, k.to_node) if q > 0 else (k.to_node, k.from_node)
+        into.setdefault(b, []).append((a, i))
+    H = np.where(np.isfinite(res.H), res.H, -np.inf)
+    boundary = set(net.boundary_names)
+    out = {}
+    for j in np.argsort(-H, kind="stable"):
+        node = names[j]
+        if node in boundary:
+            continue
+        best = None
+        for a, i in into.get(node, ()):
+            k = net.links[i]
+            length = k.segment.length if isinstance(k, PipeLink) else 0.0
+            v = abs(float(res.velocity[i])) if isinstance(k, PipeLink) else 0.0
+            ia = idx[a]
+            cand = (M[ia] + length * v, L[ia] + length)
+            if isinstance(k, PipeLink):
+                out[k.name] = (cand[1], cand[0] / cand[1] if cand[1] > 0 else 0.0)
+            if best is None or cand[0] > best[0]:
+                best = cand
+        if best is not None:
+            M[j], L[j] = best
     return out
 
 
@@ -571,11 +629,9 @@ def results_of(sc, s: NetworkStudy) -> Results:
         if _finite(d.velocity[i]):
             r.add(f"link.{k.name}.velocity", f"{k.name}: velocity",
                   0.0 if still else float(d.velocity[i]), "velocity")
-        if _finite(d.head_loss[i]):
+        if _finite(d.head_loss[i]) and not isinstance(k, PumpLink):  # a pump: its head below
             h = float(d.head_loss[i])
-            what = "head across from → to (negative: the pump's gain)" \
-                if isinstance(k, PumpLink) else "head loss from → to"
-            r.add(f"link.{k.name}.head_loss", f"{k.name}: {what}",
+            r.add(f"link.{k.name}.head_loss", f"{k.name}: head loss from → to",
                   0.0 if still and abs(h) < 1e-9 else h, "head")
     for i, n in enumerate(d.node_names):
         if _finite(d.H[i]):

@@ -534,3 +534,29 @@ pipe = { standard = "asme_b36_10m", nominal = "3", schedule = "40" }
     assert list(s.failed) == ["low level / 20 °C / new"]
     f = [f for f in s.findings if f.subject == "network at low level / 20 °C / new"]
     assert f and f[0].severity.value == "fail" and "'hill'" in f[0].rule
+
+
+def test_surge_column_is_the_whole_flowing_path_back_to_the_tank():
+    # The column a valve at K's end stops is P1 + P2 (250 m + 400 m), not P2 alone; its mean
+    # velocity is (L1 V1 + L2 V2)/(L1 + L2), by hand from the bores of ASME B36.10M 4" and 3"
+    # Sch 40 (102.3 mm, 77.9 mm; from memory) at 45 m³/h. Michaud (1878) summed over the
+    # series path: the slow-closure rise is 2 rho (L1 V1 + L2 V2) / t_c.
+    from kit.studies.network import column_upstream
+
+    _, s = _study(TREE + '\n[integrity]\nclosure_time = "30 s"\n')
+    Q = 45 / 3600
+    V1 = Q / (math.pi / 4 * 0.10226**2)
+    V2 = Q / (math.pi / 4 * 0.07793**2)
+    col = column_upstream(s.design)
+    assert col["P1"] == pytest.approx((250.0, V1), rel=2e-3)
+    assert col["P2"][0] == pytest.approx(650.0)
+    assert col["P2"][1] == pytest.approx((250 * V1 + 400 * V2) / 650, rel=2e-3)
+    rho = max(s.inputs.state(s.inputs.T_min).rho, s.inputs.state(s.inputs.T_max).rho)  # densest
+    scr = s.integrity["P2"]
+    assert scr.surge_regime == "slow"
+    # the screen bounds the rise from above with the larger of the pipe's and the path's speed
+    v2 = abs(float(s.design.velocity[s.design.link_names.index("P2")]))
+    assert v2 == pytest.approx(V2, rel=2e-3)
+    assert scr.surge_rise == pytest.approx(2 * rho * 650.0 * max(v2, col["P2"][1]) / 30.0,
+                                           rel=1e-9)
+    assert scr.surge_rise >= 2 * rho * (250 * V1 + 400 * V2) / 30.0
