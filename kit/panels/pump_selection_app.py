@@ -67,7 +67,7 @@ from kit.panels.pump_duties import (
     viscous_figure,
 )
 from kit.panels.pump_editor import PumpEditor
-from kit.panels.pump_profiles import as_figure, profile_figure, profile_spec
+from kit.panels.pump_profiles import as_figure, packed, profile_figure, profile_spec
 from kit.panels.pump_system import PumpSystemInputs, with_values
 from kit.panels.scenario_text import SaveRow, default_save_path
 from kit.panels.tables import Column, results_table_html, unit_label
@@ -605,7 +605,7 @@ class PumpSelectionApp(widgets.VBox):
         traces = []
         for i, (base, (x, y)) in enumerate(zip(frame["data"], data, strict=True)):
             tr = dict(base)
-            tr["x"], tr["y"] = fx(x), fh(y)
+            tr["x"], tr["y"] = packed(fx(x)), packed(fh(y))
             if i in texts:
                 tr["text"] = texts[i]
             traces.append(tr)
