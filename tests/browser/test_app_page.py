@@ -105,6 +105,8 @@ PAGES = [
          ".hl-workspace .hl-pump-editor .hl-point-row .hl-point-head input", nth=3, typed="72"),
     Page("tank_drainage.ipynb", ".hl-workspace .hl-outlet-picker .hl-pipe-picker select",
          nth=1, option="NPS 1-1/2 "),
+    Page("network_systems.ipynb", ".hl-workspace .hl-temp-min input", typed="10 degC",
+         chart=".hl-workspace .hl-network-curve"),
 ]
 
 

@@ -24,6 +24,7 @@ APPS = {
     "pump_selection": ("kestrel_ridge_booster.toml", "kit.panels.pump_selection_app",
                        "PumpSelectionApp"),
     "tank_drainage": ("marlow_vale_cip_dump.toml", "kit.panels.drain_app", "DrainApp"),
+    "network": ("fenwick_yard_chilled_water.toml", "kit.panels.network_app", "NetworkApp"),
 }
 
 
