@@ -508,7 +508,7 @@ class NetworkApp(widgets.VBox):
                                                            self.boundary_view]),
                         Section("Links", [self.links]), Section("Nodes", [self.nodes],
                                                                 open=False)]
-            tabs = [("Network curve", self.curve_view), ("Links", self.tables.links),
+            tabs = [("Curve", self.curve_view), ("Links", self.tables.links),
                     ("Nodes", self.tables.nodes), ("Valves", widgets.VBox([
                         self.tables.valves, self.tables.balancing])),
                     ("Findings", self.findings), ("Save", self.save_row)]

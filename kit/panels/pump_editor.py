@@ -41,8 +41,10 @@ from kit import units
 from kit.errors import InputError, ScenarioError
 from kit.panels.base import KIT_ERRORS, Panel, error_html, error_widget
 from kit.panels.charts import to_display
+from kit.panels.entry import TextEntry
 from kit.panels.fields import QuantityField
 from kit.panels.plot_view import PlotView
+from kit.panels.pump_profiles import as_figure, scatter
 
 __all__ = ["PumpEditor", "PointRow", "FLOW_UNITS", "HEAD_UNITS", "COLUMNS", "parse_points",
            "pump_doc"]
@@ -135,15 +137,17 @@ def pump_doc(pump, flow_unit: str = "m3/h", head_unit: str = "m") -> dict:
 
 
 class PointRow(widgets.HBox):
-    """One datasheet point: four text cells and a remove button (CSS ``hl-point-row``)."""
+    """One datasheet point: four text cells (:class:`kit.panels.entry.TextEntry`, sent on
+    Enter or blur) and a remove button (CSS ``hl-point-row``)."""
 
     def __init__(self, cells=("", "", "", ""), index: int = 0):
         self.index_label = widgets.Label(str(index + 1), layout=widgets.Layout(width="2.2em"))
         self.cells = []
         for (key, _h, _r), text in zip(COLUMNS, list(cells) + [""] * (4 - len(cells)),
                                        strict=False):
-            w = widgets.Text(value=str(text), continuous_update=False,
-                             layout=widgets.Layout(width="6.5em"))
+            # a TextEntry sends its text on Enter as one request (an ipywidgets Text sends a
+            # "submit" request first: a second busy/idle round per edit; kit.panels.entry)
+            w = TextEntry(value=str(text), layout=widgets.Layout(width="6.5em"))
             w.add_class(f"hl-point-{key}")
             self.cells.append(w)
         self.flow, self.head, self.efficiency, self.npshr = self.cells
@@ -188,7 +192,8 @@ class PumpEditor(Panel):
         Pasted points; ``read_csv`` (a button) replaces the table with them.
     figure : plotly.graph_objects.Figure
         Points and fitted curves, as drawn by ``plot`` (a
-        :class:`~kit.panels.plot_view.PlotView`) (head and NPSHr on the left axis, efficiency on the right).
+        :class:`~kit.panels.plot_view.PlotView`) (head and NPSHr on the left axis, efficiency
+        on the right); a static copy built on each read.
     report : ipywidgets.HTML
         The fit report (CSS ``hl-fit-report``).
 
@@ -204,7 +209,6 @@ class PumpEditor(Panel):
         #: Rows (0-based) read into the curve, and rows left out as incomplete.
         self.kept: list[int] = []
         self.incomplete: list[int] = []
-        import plotly.graph_objects as go
 
         self.heading = widgets.HTML(f"<b>{html.escape(title)}</b>" if title else "")
         self.name = widgets.Text(description="Tag", continuous_update=False,
@@ -250,14 +254,15 @@ class PumpEditor(Panel):
         self.csv.add_class("hl-csv")
         self.read_csv = widgets.Button(description="Read pasted points")
         self.read_csv.add_class("hl-read-csv")
-        # a plain Figure (the model the code edits), shown by a PlotView (the figure as
-        # JSON in the browser; see kit.panels.plot_view)
-        self.figure = go.Figure(layout=dict(
-            height=300, width=520, margin=dict(l=60, r=60, t=40, b=40), template="plotly_white",
+        # the chart's layout as a plain dict; each draw sends the traces as plain dicts to a
+        # PlotView (no plotly objects per change; see kit.panels.plot_view)
+        self._layout = dict(
+            height=300, width=520, margin=dict(l=60, r=60, t=40, b=40),
             title=dict(text="datasheet points and fitted curves"),
             legend=dict(orientation="h", y=-0.25),
             yaxis2=dict(overlaying="y", side="right", range=[0, 100], autorange=False,
-                        tick0=0, dtick=20, title=dict(text="efficiency [%]"), showgrid=False)))
+                        tick0=0, dtick=20, title=dict(text="efficiency [%]"), showgrid=False))
+        self._shown = {"data": [], "layout": self._layout}
         self.plot = PlotView()
         fig_box = widgets.VBox([self.plot])
         fig_box.add_class("hl-fit-chart")
@@ -523,9 +528,12 @@ class PumpEditor(Panel):
         pump = self.value
         return getattr(pump, "pumps", [pump])[0] if pump is not None else None
 
-    def _draw(self) -> None:
-        import plotly.graph_objects as go
+    @property
+    def figure(self):
+        """The chart as drawn, a static plotly ``Figure`` (built on each read)."""
+        return as_figure(self._shown)
 
+    def _draw(self) -> None:
         p = self._pump_curve()
         if p is None:
             return
@@ -534,37 +542,31 @@ class PumpEditor(Panel):
         x_pts = to_display(p.flow, "flow", sysm)
         x_fit = to_display(Qf, "flow", sysm)
         traces = [
-            go.Scatter(x=x_pts, y=to_display(p.head_points, "head", sysm), mode="markers",
-                       name="head, datasheet", marker=dict(color="#1f4e9c", size=8)),
-            go.Scatter(x=x_fit, y=to_display(p.head(Qf), "head", sysm), mode="lines",
-                       name="head, fitted", line=dict(color="#1f4e9c")),
+            scatter(x_pts, to_display(p.head_points, "head", sysm), mode="markers",
+                    name="head, datasheet", marker=dict(color="#1f4e9c", size=8)),
+            scatter(x_fit, to_display(p.head(Qf), "head", sysm), mode="lines",
+                    name="head, fitted", line=dict(color="#1f4e9c")),
         ]
         if p.npshr_points is not None:
             traces += [
-                go.Scatter(x=x_pts, y=to_display(p.npshr_points, "head", sysm), mode="markers",
-                           name="NPSHr, datasheet", marker=dict(color="#a33b20", size=7,
-                                                               symbol="square")),
-                go.Scatter(x=x_fit, y=to_display(p.npshr(Qf), "head", sysm), mode="lines",
-                           name="NPSHr, fitted", line=dict(color="#a33b20", dash="dash"))]
+                scatter(x_pts, to_display(p.npshr_points, "head", sysm), mode="markers",
+                        name="NPSHr, datasheet", marker=dict(color="#a33b20", size=7,
+                                                            symbol="square")),
+                scatter(x_fit, to_display(p.npshr(Qf), "head", sysm), mode="lines",
+                        name="NPSHr, fitted", line=dict(color="#a33b20", dash="dash"))]
         if p.efficiency_points is not None:
             traces += [
-                go.Scatter(x=x_pts, y=p.efficiency_points * 100.0, mode="markers", yaxis="y2",
-                           name="efficiency, datasheet", marker=dict(color="#2f7d32", size=7,
-                                                                    symbol="diamond")),
-                go.Scatter(x=x_fit, y=p.efficiency(Qf) * 100.0, mode="lines", yaxis="y2",
-                           name="efficiency, fitted", line=dict(color="#2f7d32", dash="dot"))]
-        fig = self.figure
-        with fig.batch_update():
-            if [t.name for t in fig.data] != [t.name for t in traces]:
-                fig.data = ()
-                fig.add_traces(traces)
-            else:
-                for old, new in zip(fig.data, traces, strict=True):
-                    old.x, old.y = new.x, new.y
-            fig.layout.xaxis.title.text = f"flow [{units.display_unit('flow', sysm)}]".replace(
-                "m**3/h", "m³/h")
-            fig.layout.yaxis.title.text = f"head, NPSHr [{units.display_unit('head', sysm)}]"
-        self.plot.show(fig)
+                scatter(x_pts, p.efficiency_points * 100.0, mode="markers", yaxis="y2",
+                        name="efficiency, datasheet", marker=dict(color="#2f7d32", size=7,
+                                                                 symbol="diamond")),
+                scatter(x_fit, p.efficiency(Qf) * 100.0, mode="lines", yaxis="y2",
+                        name="efficiency, fitted", line=dict(color="#2f7d32", dash="dot"))]
+        layout = dict(self._layout)
+        layout["xaxis"] = {"title": {"text": f"flow [{units.display_unit('flow', sysm)}]"
+                                     .replace("m**3/h", "m³/h")}}
+        layout["yaxis"] = {"title": {"text": f"head, NPSHr [{units.display_unit('head', sysm)}]"}}
+        self._shown = {"data": traces, "layout": layout}
+        self.plot.show(self._shown)
         self.report.value = self._report_html(p)
 
     def _report_html(self, p) -> str:

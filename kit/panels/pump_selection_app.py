@@ -617,12 +617,14 @@ class PumpSelectionApp(widgets.VBox):
         x_range = [0, _nice_top(float(fx(q_top)) * 1.02)]
         base = frame["layout"]
         layout = dict(base)
-        layout["xaxis"] = {**base["xaxis"], "range": x_range}
-        layout["xaxis2"] = {**base["xaxis2"], "range": x_range,
+        # every axis with a fixed range (autorange off): when only trace x and y change, the
+        # browser can move the paths without a full redraw (kit/panels/plot_view.js)
+        layout["xaxis"] = {**base["xaxis"], "autorange": False, "range": x_range}
+        layout["xaxis2"] = {**base["xaxis2"], "autorange": False, "range": x_range,
                             "title": {"text": f"flow [{unit_label('flow', sysm)}]"}}
-        layout["yaxis"] = {**base["yaxis"], "range": [0, _nice_top(float(fh(1.08 * h_top)))],
+        layout["yaxis"] = {**base["yaxis"], "autorange": False, "range": [0, _nice_top(float(fh(1.08 * h_top)))],
                            "title": {"text": f"head [{unit_label('head', sysm)}]"}}
-        layout["yaxis2"] = {**base["yaxis2"], "range": [0, _nice_top(float(fh(1.15 * n_top)))],
+        layout["yaxis2"] = {**base["yaxis2"], "autorange": False, "range": [0, _nice_top(float(fh(1.15 * n_top)))],
                             "title": {"text": f"NPSH [{unit_label('head', sysm)}]"}}
         self._shown = {"data": traces, "layout": layout}
         self.plot.show(self._shown)

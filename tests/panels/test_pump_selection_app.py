@@ -53,8 +53,10 @@ def test_editing_a_point_moves_the_operating_points_and_the_tables(app, scenario
     table0 = app.candidates.value
     app.editor.set_point(3, head="75")
     assert app.message.value == ""
-    x1 = np.array(op.x)
+    # app.figure is a static copy of the chart as shown: read it again after the edit
+    x1 = np.array(trace(app, "KR-A end-suction 1480 rpm: operating points")[0].x)
     assert np.all(x1 > x0)  # more head at 150 m³/h: every point moves right
+    assert np.array_equal(np.array(op.x), x0)  # the copy taken before is not changed
     assert app.candidates.value != table0
     assert app.scenario.doc["pumps"][0]["head"][3] == "75 m"
     assert scenario.doc["pumps"][0]["head"][3] == "70 m"  # the original is untouched
@@ -81,7 +83,7 @@ def test_warmer_liquid_lowers_npsh_available(app):
     y0 = min(crosses.y)
     app.t_max.set_text("60 degC")
     assert app.message.value == ""
-    y1 = min(crosses.y)
+    y1 = min(trace(app, "KR-A end-suction 1480 rpm: NPSHa at operating points")[0].y)
     p_baro = app.study.system.p_baro
     w28, w60 = IAPWS97(T=301.15, P=p_baro / 1e6), IAPWS97(T=333.15, P=p_baro / 1e6)
     drop = ((p_baro - IAPWS97(T=301.15, x=0).P * 1e6) / (w28.rho * g)
@@ -265,3 +267,55 @@ def test_a_refused_system_input_is_marked_at_its_field(app):
     high.set_text("157 m")
     assert high.message.value == "" and app.message.value == ""
     assert app.scenario.doc["destination"]["level_high"] == "157 m"
+
+
+# ------------------------------------------------------------------ the study cache and the chart's data
+def test_going_back_to_a_datasheet_point_takes_the_study_from_the_cache(app, scenario):
+    """The study is a pure function of the scenario document and the pumps: a value tried
+    before is not computed again, and what is shown equals a fresh study of the same inputs."""
+    from widgetspy import sent_messages
+
+    n0 = app.recomputes
+    app.editor.set_point(3, head="75")
+    assert app.recomputes == n0 + 1
+    shown_75 = app.plot.data
+    app.editor.set_point(3, head="70")          # the scenario's own value: cached at build
+    assert app.recomputes == n0 + 1
+    with sent_messages() as sent:
+        app.editor.set_point(3, head="75")
+    assert app.recomputes == n0 + 1 and app.plot.data == shown_75
+    assert any(w is app.plot for w, _ in sent)  # the chart still follows the edit
+    fresh = ps.study(app.scenario, pumps=app.pumps)
+    assert_same_results(app.results, ps.results_of(app.scenario, fresh))
+    # a different value is computed, and the cache stays bounded
+    for k in range(20):
+        app.editor.set_point(3, head=f"{71 + 0.2 * k:g}")
+    assert app.recomputes == n0 + 21
+    assert len(app._cache) == 16
+
+
+def test_study_key_tells_pumps_and_documents_apart(scenario):
+    from kit.inputs import pump_selection as pi
+    from kit.panels.pump_selection_app import _study_key
+
+    pumps = list(pi.read(scenario).pumps)
+    k0 = _study_key(scenario, pumps)
+    assert k0 == _study_key(scenario.copy(), list(pi.read(scenario).pumps))
+    other = pi.with_pump(scenario, 0, {**scenario.doc["pumps"][0],
+                                       "head": [*scenario.doc["pumps"][0]["head"][:3], "72 m",
+                                                *scenario.doc["pumps"][0]["head"][4:]]})
+    assert _study_key(other, pumps) != k0                       # the document differs
+    assert _study_key(scenario, list(pi.read(other).pumps)) != k0   # a pump differs
+    assert _study_key(scenario, [object()]) is None             # unknown kind: not cached
+
+
+def test_the_chart_is_sent_packed_and_the_static_figure_has_the_same_numbers(app):
+    """Float arrays go to the browser as plotly.js typed arrays (base64 float64); the static
+    figure decodes them to the same numbers."""
+    from kit.panels.pump_profiles import unpacked
+
+    band = app.plot.data[0]
+    assert set(band["x"]) == {"dtype", "bdata"}
+    x = unpacked(band["x"])
+    assert x[-1] == pytest.approx(app.study.band.Q[-1] * 3600.0, rel=1e-12)   # m³/h
+    assert list(app.figure.data[0].x) == list(x)
