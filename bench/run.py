@@ -167,7 +167,7 @@ def main(argv=None):
     bench_import()
     for mod in ("bench_sizing", "bench_pumps", "bench_drain", "bench_record", "bench_panels",
                 "bench_units", "bench_line_list", "bench_network", "bench_staging",
-                "bench_drain_app", "bench_network_app"):
+                "bench_drain_app", "bench_network_app", "bench_pump_app"):
         if Path(__file__).with_name(f"{mod}.py").exists():
             importlib.import_module(mod).run(report, timeit, repeat)
     if a.json:

@@ -6,9 +6,14 @@ time, and the pumped system (:class:`~kit.panels.pump_system.PumpSystemInputs`: 
 flow, source and destination levels and pressures, suction and discharge lines with their
 pipes, lengths, rises and fittings, running hours, tariff and currency) — write back into that
 copy (strings with units, as a scenario file holds them), and every change re-runs
-:func:`kit.studies.pump_selection.study` and redraws. Nothing here computes hydraulics: the
-study does. A refused input is marked at its field and the results are marked stale
-(:class:`kit.panels.base.Refusals`); ``workspace`` is the one-screen view.
+:func:`kit.studies.pump_selection.study` (or takes it from the last
+:data:`STUDY_CACHE_SIZE` runs: it is a pure function of the scenario document and the pumps)
+and redraws, the main chart first. Charts go to their
+:class:`~kit.panels.plot_view.PlotView` as plain dicts (float arrays as plotly.js typed
+arrays); plotly ``Figure`` objects are built only for the record (:meth:`static_figures`).
+Nothing here computes hydraulics: the study does. A refused input is marked at its field
+and the results are marked stale (:class:`kit.panels.base.Refusals`); ``workspace`` is the
+one-screen view.
 
 Sections (each a widget the notebook shows in its own cell):
 
@@ -622,9 +627,11 @@ class PumpSelectionApp(widgets.VBox):
         layout["xaxis"] = {**base["xaxis"], "autorange": False, "range": x_range}
         layout["xaxis2"] = {**base["xaxis2"], "autorange": False, "range": x_range,
                             "title": {"text": f"flow [{unit_label('flow', sysm)}]"}}
-        layout["yaxis"] = {**base["yaxis"], "autorange": False, "range": [0, _nice_top(float(fh(1.08 * h_top)))],
+        y_top = _nice_top(float(fh(1.08 * h_top)))
+        n_range = [0, _nice_top(float(fh(1.15 * n_top)))]
+        layout["yaxis"] = {**base["yaxis"], "autorange": False, "range": [0, y_top],
                            "title": {"text": f"head [{unit_label('head', sysm)}]"}}
-        layout["yaxis2"] = {**base["yaxis2"], "autorange": False, "range": [0, _nice_top(float(fh(1.15 * n_top)))],
+        layout["yaxis2"] = {**base["yaxis2"], "autorange": False, "range": n_range,
                             "title": {"text": f"NPSH [{unit_label('head', sysm)}]"}}
         self._shown = {"data": traces, "layout": layout}
         self.plot.show(self._shown)
