@@ -87,6 +87,23 @@ _CURVE_COLOUR = "#1f4e9c"
 _BAND = "rgba(90,90,90,0.55)"
 
 
+def _kernel_loop():
+    """The running event loop of an IPython kernel, or None outside one (plain Python,
+    tests: a loop some other library runs in this thread — a browser driver's — is not a
+    kernel's and must not defer the study)."""
+    try:
+        from IPython import get_ipython
+    except ImportError:
+        return None
+    shell = get_ipython()
+    if shell is None or getattr(shell, "kernel", None) is None:
+        return None
+    try:
+        return asyncio.get_running_loop()
+    except RuntimeError:
+        return None
+
+
 def pump_of(inp) -> str | None:
     """The pump link the study balances against and draws the curve for: ``[curve] pump``,
     else the only pump link, else None."""
@@ -395,9 +412,8 @@ class NetworkApp(widgets.VBox):
         event loop :data:`STUDY_DELAY` seconds after the edit, so that the kernel answers the
         edit (and the browser draws the schematic) before the study's seconds of work; a newer
         edit in between replaces the one waiting."""
-        try:
-            loop = asyncio.get_running_loop()
-        except RuntimeError:
+        loop = _kernel_loop()
+        if loop is None:
             self._finish()
             return
         if self._timer is not None:
