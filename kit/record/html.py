@@ -275,13 +275,21 @@ def _design_basis(data: dict, limit: int = 14) -> str:
             + '<p class="small">Every input is listed in “Inputs”.</p>')
 
 
+#: Per kind, the result keys shown first among the key numbers (a network reports every link
+#: and node: the pump's duty, the curve and the lowest pressures are what a checker looks for).
+_KEY_FIRST = {"network": ("pump.", "balance.pump", "curve.", "nodes.lowest", "band.lowest",
+                          "network.verdict")}
+
+
 def _key_numbers(data: dict, res, limit: int = 16) -> str:
-    """Up to ``limit`` results, those keyed ``selected.``/``recommended.`` first; results
-    whose label names a candidate not selected are left out."""
+    """Up to ``limit`` results, those keyed ``selected.``/``recommended.`` (and the kind's
+    :data:`_KEY_FIRST`) first; results whose label names a candidate not selected are left
+    out."""
     tokens = [_token(a.name) for a in res.alternatives]
     rows = []
     results = list(data.get("results", []))
-    first = [r for r in results if str(r.get("key", "")).startswith(("selected.", "recommended."))]
+    lead = ("selected.", "recommended.") + _KEY_FIRST.get(str(data.get("kind", "")), ())
+    first = [r for r in results if str(r.get("key", "")).startswith(lead)]
     for r in first + [r for r in results if r not in first]:
         label = str(r.get("label", ""))
         if any(t and t in label for t in tokens):
