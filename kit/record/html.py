@@ -26,6 +26,7 @@ True
 from __future__ import annotations
 
 import html
+import textwrap
 
 __all__ = ["render_html", "SEVERITY_LABELS", "CSS", "FIGURE_WIDTH_PX"]
 
@@ -87,6 +88,8 @@ details.all-findings > summary { cursor: pointer; }
 #: Width of every figure in the record [CSS px]: fits the printable width of A4 (180 mm =
 #: 680 px at 96 px/in) and Letter (186 mm = 703 px) with 15 mm margins.
 FIGURE_WIDTH_PX = 660
+#: Characters of a figure title per line at that width (plotly's 17 px title font).
+_TITLE_CHARS = 64
 FIGURE_HEIGHT_PX = 400
 
 _RESIZE_JS = """
@@ -482,6 +485,11 @@ def _figures(figures) -> str:
         f = go.Figure(fig)
         legend_right = f.layout.legend.x is not None and f.layout.legend.x > 1
         f.update_layout(width=FIGURE_WIDTH_PX, height=FIGURE_HEIGHT_PX, autosize=False)
+        title = f.layout.title.text
+        if title and len(title) > _TITLE_CHARS and "<br>" not in title:
+            lines = textwrap.wrap(title, _TITLE_CHARS)  # a long title would run off the figure
+            f.update_layout(title={"text": "<br>".join(lines)},
+                            margin={"t": 40 + 22 * len(lines)})
         if legend_right:  # a legend beside the plot would leave it no room on paper
             f.update_layout(legend={"orientation": "h", "x": 0, "y": -0.2})
         frag = f.to_html(full_html=False, include_plotlyjs=(i == 0), include_mathjax=False,
