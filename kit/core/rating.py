@@ -876,8 +876,22 @@ def sdr_pressure(SDR: float, HDS: float, factor: float = 1.0) -> float:
     return 2.0 * HDS * f / (SDR - 1.0)
 
 
+class _PressureMargin:
+    """``margin`` and ``holds`` of a rating judged on pressure (``P`` against ``P_allow``)."""
+
+    @property
+    def margin(self) -> float:
+        """``P_allow - P`` [Pa]."""
+        return self.P_allow - self.P
+
+    @property
+    def holds(self) -> bool:
+        """True when the design pressure is within the rating."""
+        return self.P <= self.P_allow
+
+
 @dataclass(frozen=True)
-class PlasticRating:
+class PlasticRating(_PressureMargin):
     """Result of :func:`plastic_pipe_rating` (pressures gauge).
 
     Attributes
@@ -903,16 +917,6 @@ class PlasticRating:
     method: str
     basis: str
     source: str
-
-    @property
-    def margin(self) -> float:
-        """``P_allow - P`` [Pa]."""
-        return self.P_allow - self.P
-
-    @property
-    def holds(self) -> bool:
-        """True when the design pressure is within the rating."""
-        return self.P <= self.P_allow
 
 
 def plastic_pipe_rating(P: float, Do: float, wall: float, T: float, compound: str,
@@ -978,7 +982,7 @@ _DEFAULT_COMPOUND = {"pvc": "pvc_1120", "hdpe": "pe4710"}
 
 
 @dataclass(frozen=True)
-class GivenRating:
+class GivenRating(_PressureMargin):
     """A pressure rating given by the user from the maker's data (hose, lined or special pipe).
 
     The kit does not compute it; it compares the highest pressure against it. Pressures gauge.
@@ -999,16 +1003,6 @@ class GivenRating:
     def __post_init__(self):
         check_range("[integrity] rated_pressure", self.P_allow, "Pa", low=0.0,
                     low_inclusive=False)
-
-    @property
-    def margin(self) -> float:
-        """``P_allow - P`` [Pa]."""
-        return self.P_allow - self.P
-
-    @property
-    def holds(self) -> bool:
-        """True when the design pressure is within the rating."""
-        return self.P <= self.P_allow
 
 
 def pipe_rating(pipe, P: float, T: float, grade: str | None = None,
