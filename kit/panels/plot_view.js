@@ -14,7 +14,8 @@
 // shows in two places (a workspace and a narrative cell) only the one on screen is drawn on a
 // change, and the other follows when it is scrolled to. The figure div's data-last-draw
 // attribute says how the last draw was made: "new", "react" or "paths" (the fast path below);
-// data-in-view says whether the chart was on screen at its last check ("1"/"0").
+// data-in-view says whether the chart was on screen at its last check ("1"/"0"), and the
+// div's headlineFigure() returns the figure the model holds (what a full draw would take).
 
 const LOADING = "__headlinePlotlyLoading";
 
@@ -92,15 +93,26 @@ async function pump() {
   }
 }
 
-// The fast path: when only the x and y arrays of scatter traces changed and every axis has
-// a fixed range, Plotly.animate with redraw: false moves the traces' paths and leaves the
-// axes, legends and annotations as drawn (about a quarter of a full Plotly.react of the
-// line-sizing bore chart in JupyterLab). Anything else goes through Plotly.react.
-function withoutXY(trace) {
+// The fast path: when only per-point arrays of scatter traces changed (x, y and the hover
+// text: text, hovertext, customdata) and every axis has a fixed range, Plotly.animate with
+// redraw: false moves the traces' paths and points and leaves the axes, legends and
+// annotations as drawn (about a quarter of a full Plotly.react of the line-sizing bore chart
+// in JupyterLab; the pump chart's operating points change their hover text on every edit).
+// The animated frame carries every one of these arrays, so what a hover shows afterwards is
+// what a full draw would show (checked by tests/browser/test_plot_fast_path.py). Anything
+// else goes through Plotly.react.
+const POINT_ARRAYS = ["x", "y", "text", "hovertext", "customdata"];
+
+function withoutPointArrays(trace) {
   const rest = Object.assign({}, trace);
-  delete rest.x;
-  delete rest.y;
+  for (const k of POINT_ARRAYS) delete rest[k];
   return JSON.stringify(rest);
+}
+
+function pointArrays(trace) {
+  const out = {};
+  for (const k of POINT_ARRAYS) if (k in trace) out[k] = trace[k];
+  return out;
 }
 
 function fixedAxes(layout) {
@@ -115,17 +127,18 @@ function signature(fig) {
   return {
     layout: JSON.stringify(fig.layout),
     config: JSON.stringify(fig.config),
-    traces: fig.data.map(withoutXY),
+    traces: fig.data.map(withoutPointArrays),
+    keys: fig.data.map((t) => POINT_ARRAYS.filter((k) => k in t).join(",")),
     scatter: fig.data.every((t) => (t.type || "scatter") === "scatter"),
     fixed: fixedAxes(fig.layout),
   };
 }
 
-function onlyXYChanged(before, after) {
+function onlyPointsChanged(before, after) {
   return before !== null && after.scatter && after.fixed &&
     before.layout === after.layout && before.config === after.config &&
     before.traces.length === after.traces.length &&
-    before.traces.every((t, i) => t === after.traces[i]);
+    before.traces.every((t, i) => t === after.traces[i] && before.keys[i] === after.keys[i]);
 }
 
 // A chart inside an element of class "hl-fit-height" (the workspace's main chart) takes the
@@ -167,6 +180,8 @@ export default {
     let alive = true;
     let Plotly = null;
     let inView = null;    // unknown until the IntersectionObserver first reports
+    // for tests and diagnostics: the figure the model holds now, as a full draw would take it
+    div.headlineFigure = () => figureOf(model, div);
 
     const view = {
       // true when a figure was drawn (the queue then lets the browser paint it)
@@ -183,11 +198,11 @@ export default {
         const sig = signature(fig);
         logEvent("draw", id);
         let how;
-        if (drawn && onlyXYChanged(shown, sig)) {
+        if (drawn && onlyPointsChanged(shown, sig)) {
           how = "paths";
           await Plotly.animate(
             div,
-            { data: fig.data.map((t) => ({ x: t.x, y: t.y })), traces: fig.data.map((_, i) => i) },
+            { data: fig.data.map(pointArrays), traces: fig.data.map((_, i) => i) },
             { transition: { duration: 0 }, frame: { duration: 0, redraw: false } });
         } else if (drawn) {
           how = "react";

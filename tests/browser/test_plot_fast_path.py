@@ -1,0 +1,75 @@
+"""The charts' fast redraw shows what a full draw would show (issue 12, latency).
+
+A chart whose change is only in its traces' per-point arrays (x, y and hover text) and whose
+axes have fixed ranges is redrawn by ``Plotly.animate`` without a full redraw
+(``kit/panels/plot_view.js``). This checks, in JupyterLab in Chromium, after edits that take
+that path (the chart's ``data-last-draw`` is ``"paths"``): for every trace that shows a hover
+label, the labels of its first, middle and last points are the same on the chart as on a
+fresh chart drawn from nothing (``Plotly.newPlot``) with the figure the kernel sent
+(the div's ``headlineFigure()``). Independent computation: plotly.js's own full draw.
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from tests.browser.test_workspace import CASES, CHART, TO_TOP, WS
+
+pytestmark = pytest.mark.browser
+
+#: Hover labels of the first, middle and last point of every hoverable trace, on the chart
+#: and on a fresh full draw of the model's figure in an off-screen div of the same size.
+HOVERS = r"""async (sel) => {
+  const gd = document.querySelector(sel + ' .js-plotly-plot');
+  const fig = gd.headlineFigure();
+  const ref = document.createElement('div');
+  ref.style.cssText = `position:fixed;left:0;top:0;width:${gd.clientWidth}px;` +
+    `height:${gd.clientHeight}px;z-index:-1`;
+  document.body.appendChild(ref);
+  await Plotly.newPlot(ref, JSON.parse(JSON.stringify(fig.data)), fig.layout, fig.config);
+  const labels = async (div) => {
+    const out = [];
+    for (let k = 0; k < div._fullData.length; k++) {
+      const t = div._fullData[k];
+      if (t.hoverinfo === 'skip' || t.hoverinfo === 'none' || !t._length) continue;
+      const sub = (t.xaxis || 'x') + (t.yaxis || 'y');
+      for (const j of new Set([0, t._length >> 1, t._length - 1])) {
+        Plotly.Fx.hover(div, [{curveNumber: k, pointNumber: j}], sub);
+        await new Promise((r) => setTimeout(r, 0));
+        out.push([k, j, [...div.querySelectorAll('.hoverlayer .hovertext')]
+          .map((e) => e.textContent).join(' | ')]);
+        Plotly.Fx.unhover(div);
+      }
+    }
+    return out;
+  };
+  const shown = await labels(gd);
+  const full = await labels(ref);
+  Plotly.purge(ref);
+  ref.remove();
+  return {shown, full, how: gd.dataset.lastDraw};
+}"""
+
+
+@pytest.mark.parametrize("name", ["pump_selection", "line_sizing"])
+def test_fast_redraw_hover_matches_a_full_draw(name, lab, page, open_and_run):
+    notebook, edit = CASES[name]
+    page.set_viewport_size({"width": 1366, "height": 768})
+    open_and_run(page, notebook, timeout=240)
+    page.evaluate(TO_TOP, WS)
+    page.wait_for_selector(f"{CHART} .scatterlayer path.js-line")
+    ways = set()
+    for i in range(2):
+        old = page.evaluate("(s) => [...document.querySelectorAll(s + ' path.js-line')]"
+                            ".map(p => p.getAttribute('d')).join('|')", CHART)
+        edit(page, i)
+        page.wait_for_function("([s, old]) => [...document.querySelectorAll(s + "
+                               "' path.js-line')].map(p => p.getAttribute('d')).join('|') "
+                               "!== old", arg=[CHART, old], timeout=30_000)
+        page.wait_for_timeout(500)              # every message of the change applied
+        got = page.evaluate(HOVERS, CHART)
+        ways.add(got["how"])
+        assert got["shown"], "no hover labels read"
+        assert any(lbl for _, _, lbl in got["shown"]), got["shown"]
+        assert got["shown"] == got["full"], (got["how"], got["shown"], got["full"])
+    assert "paths" in ways, f"{name}: the fast path was never taken ({ways})"
