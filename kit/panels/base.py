@@ -42,7 +42,7 @@ from kit.errors import HeadlineError, OutOfRangeError, ScenarioError
 __all__ = ["Panel", "HtmlView", "SYSTEMS", "error_html", "check_system", "KIT_ERRORS",
            "InvalidInput", "Refusal", "Refusals", "field_value", "panel_value", "stale_html",
            "section_heading", "display_message", "locate_field", "mark_field", "unmark_field",
-           "shown_value", "BASE_CSS", "STALE_TEXT", "style_widget"]
+           "shown_value", "BASE_CSS", "STALE_TEXT", "style_widget", "kernel_loop"]
 
 #: What the banner over stale results says.
 STALE_TEXT = "results are for the last accepted inputs"
@@ -537,3 +537,30 @@ class HtmlView(Panel):
 
     def _show(self, obj) -> None:
         self._render_system()
+
+
+def kernel_loop():
+    """The running event loop of an IPython kernel, or None outside one (plain Python,
+    tests: a loop some other library runs in this thread — a browser driver's — is not a
+    kernel's and must not defer work).
+
+    The apps answer an edit with the main chart first and finish the rest of the study from
+    this loop a moment later (:data:`kit.panels.network_app.STUDY_DELAY`,
+    :data:`kit.panels.pump_selection_app.STUDY_DELAY`).
+
+    >>> kernel_loop() is None     # plain Python
+    True
+    """
+    import asyncio
+
+    try:
+        from IPython import get_ipython
+    except ImportError:
+        return None
+    shell = get_ipython()
+    if shell is None or getattr(shell, "kernel", None) is None:
+        return None
+    try:
+        return asyncio.get_running_loop()
+    except RuntimeError:
+        return None

@@ -39,7 +39,6 @@ Example
 
 from __future__ import annotations
 
-import asyncio
 import copy
 import html
 
@@ -50,7 +49,7 @@ from kit import units
 from kit.core.findings import Severity
 from kit.errors import InputError
 from kit.inputs import network as network_inputs
-from kit.panels.base import InvalidInput, Refusals, check_system
+from kit.panels.base import InvalidInput, Refusals, check_system, kernel_loop
 from kit.panels.charts import to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
@@ -85,23 +84,6 @@ _STYLE = """<style>
 
 _CURVE_COLOUR = "#1f4e9c"
 _BAND = "rgba(90,90,90,0.55)"
-
-
-def _kernel_loop():
-    """The running event loop of an IPython kernel, or None outside one (plain Python,
-    tests: a loop some other library runs in this thread — a browser driver's — is not a
-    kernel's and must not defer the study)."""
-    try:
-        from IPython import get_ipython
-    except ImportError:
-        return None
-    shell = get_ipython()
-    if shell is None or getattr(shell, "kernel", None) is None:
-        return None
-    try:
-        return asyncio.get_running_loop()
-    except RuntimeError:
-        return None
 
 
 def pump_of(inp) -> str | None:
@@ -412,7 +394,7 @@ class NetworkApp(widgets.VBox):
         event loop :data:`STUDY_DELAY` seconds after the edit, so that the kernel answers the
         edit (and the browser draws the schematic) before the study's seconds of work; a newer
         edit in between replaces the one waiting."""
-        loop = _kernel_loop()
+        loop = kernel_loop()
         if loop is None:
             self._finish()
             return

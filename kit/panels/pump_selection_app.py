@@ -47,6 +47,7 @@ from __future__ import annotations
 
 import html
 import json
+from dataclasses import dataclass
 from functools import lru_cache
 
 import ipywidgets as widgets
@@ -58,7 +59,14 @@ from kit.core.operating import BEP_REGIONS
 from kit.core.pump import PumpCurve, PumpSet
 from kit.errors import InputError
 from kit.inputs import pump_selection as pump_inputs
-from kit.panels.base import KIT_ERRORS, InvalidInput, Refusal, Refusals, check_system
+from kit.panels.base import (
+    KIT_ERRORS,
+    InvalidInput,
+    Refusal,
+    Refusals,
+    check_system,
+    kernel_loop,
+)
 from kit.panels.charts import to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
@@ -80,7 +88,7 @@ from kit.panels.workspace import status_html
 from kit.studies import pump_selection as ps
 
 __all__ = ["PumpSelectionApp", "CANDIDATE_ROWS", "candidates_html", "POINT_COLUMNS", "CONTROL_COLUMNS",
-           "PUMP_COLOURS", "CAUTION_TOPICS"]
+           "PUMP_COLOURS", "CAUTION_TOPICS", "STUDY_DELAY"]
 
 #: Our own plain colours, one per candidate.
 PUMP_COLOURS = ("#1f4e9c", "#c0392b", "#2f7d32", "#8e44ad", "#d68910", "#17707a")
@@ -194,6 +202,20 @@ def candidates_html(rows, system: str = "SI", caption: str = "") -> str:
 #: re-renders without running the study again).
 STUDY_CACHE_SIZE = 16
 
+#: Seconds between an edit's pump chart (drawn from the study's preview) and the rest of its
+#: study, in a kernel: the browser draws the chart before the kernel sends the tables.
+STUDY_DELAY = 0.1
+
+
+@dataclass
+class _Quick:
+    """An accepted edit whose study is begun: its inputs and the study's preview
+    (:func:`kit.studies.pump_selection.preview`), what the pump chart is drawn from."""
+
+    scenario: object
+    pumps: list
+    preview: object
+
 
 def _pump_key(p):
     """What defines a pump curve or set, as a hashable tuple (None: not known here, so
@@ -272,7 +294,10 @@ class PumpSelectionApp(widgets.VBox):
         self._cache: list = []
         #: how many times the study was run (not taken from the cache)
         self.recomputes = 0
+        self._pending = None      # an edit's study to finish (a _Quick), in a kernel
+        self._timer = None
         _, _, self.study, self.results = self._run(self.scenario, self.pumps)
+        self._accepted = (self.scenario, self.pumps)
         self._busy = False
 
         liq = self.scenario.doc.get("liquid", {})
@@ -402,7 +427,7 @@ class PumpSelectionApp(widgets.VBox):
             flows, hours = ed.texts
             try:
                 scenario = pump_inputs.with_load_profile(self.scenario, flows, hours)
-                return self._run(scenario, self.pumps)
+                return self._run(scenario, self.pumps, quick=True)
             except KIT_ERRORS as exc:
                 raise Refusal(ed, str(exc)) from exc
 
@@ -421,7 +446,7 @@ class PumpSelectionApp(widgets.VBox):
             try:   # a refusal of the writer or of the study is the edited field's
                 scenario = pump_inputs.with_temperatures(self.scenario, self.t_min.text,
                                                          self.t_max.text)
-                return self._run(scenario, self.pumps)
+                return self._run(scenario, self.pumps, quick=True)
             except KIT_ERRORS as exc:
                 raise Refusal(edited, edited.explain_any(exc)) from exc
 
@@ -441,7 +466,7 @@ class PumpSelectionApp(widgets.VBox):
                 raise Refusal(self.editor, str(exc)) from exc
             pumps = list(self.pumps)
             pumps[i] = self.editor.value
-            return self._run(scenario, pumps)
+            return self._run(scenario, pumps, quick=True)
 
         self._accept(self.refusals.attempt(apply))
 
@@ -462,7 +487,7 @@ class PumpSelectionApp(widgets.VBox):
                 raise InvalidInput(str(exc)) from exc
             try:
                 scenario = with_values(self.scenario, {inputs.keys[w]: value})
-                return self._run(scenario, self.pumps)
+                return self._run(scenario, self.pumps, quick=True)
             except KIT_ERRORS as exc:
                 if isinstance(w, QuantityField):
                     raise Refusal(w, w.explain_any(exc)) from exc
@@ -478,17 +503,24 @@ class PumpSelectionApp(widgets.VBox):
             self._busy = False
 
     # ------------------------------------------------------------------ computing
-    def _run(self, scenario, pumps):
+    def _run(self, scenario, pumps, quick: bool = False, preview=None):
         """(scenario, pumps, study, results): the study and its results taken from the last
         :data:`STUDY_CACHE_SIZE` computations when the scenario's document and the pumps
-        are the same (both are pure functions of those), else computed and kept."""
+        are the same (both are pure functions of those), else computed and kept.
+
+        ``quick`` (an edit, in a kernel): a study not in the cache is started with
+        :func:`kit.studies.pump_selection.preview` only, returned as a :class:`_Quick`; the
+        app draws the pump chart from it and finishes the study from the kernel's event
+        loop (:meth:`_schedule`). ``preview``: the preview of these inputs, reused."""
         key = _study_key(scenario, pumps)
         if key is not None:
             for k, (seen, out) in enumerate(self._cache):
                 if seen == key:
                     self._cache.append(self._cache.pop(k))
                     return (scenario, pumps, *out)
-        study = ps.study(scenario, pumps=pumps)
+        if quick and kernel_loop() is not None:
+            return _Quick(scenario, pumps, ps.preview(scenario, pumps))
+        study = ps.study(scenario, pumps=pumps, preview=preview)
         out = (study, ps.results_of(scenario, study))
         self.recomputes += 1
         if key is not None:
@@ -496,16 +528,93 @@ class PumpSelectionApp(widgets.VBox):
         return (scenario, pumps, *out)
 
     def _accept(self, out) -> None:
-        """Keep an accepted (scenario, pumps, study, results) and redraw; None: refused."""
+        """Keep an accepted (scenario, pumps, study, results) and redraw; a :class:`_Quick`:
+        keep its inputs, draw the pump chart from its preview and finish the study from the
+        event loop; None: refused."""
         if out is None:
+            self._cancel()      # a study of an earlier edit must not clear this refusal
             return
+        if isinstance(out, _Quick):
+            self.scenario, self.pumps = out.scenario, out.pumps
+            self._draw(out.preview)
+            self._pending = out
+            self._schedule()
+            return
+        self._cancel()
         self.scenario, self.pumps, self.study, self.results = out
+        self._accepted = (self.scenario, self.pumps)
         self._render()
 
-    def recompute(self) -> None:
-        """Re-run the study on the working scenario and redraw; a refusal is shown in the
-        banner over the results, which are marked stale."""
-        self._accept(self.refusals.attempt(lambda: self._run(self.scenario, self.pumps)))
+    # ------------------------------------------------------------- the deferred study
+    def _schedule(self) -> None:
+        """Finish the pending study from the kernel's event loop :data:`STUDY_DELAY`
+        seconds from now (the kernel answers the edit and the browser draws the pump chart
+        first); a newer edit in between replaces the one waiting."""
+        loop = kernel_loop()
+        if loop is None:
+            self._finish()
+            return
+        if self._timer is not None:
+            self._timer.cancel()
+        self._timer = loop.call_later(STUDY_DELAY, self._deferred)
+
+    def _cancel(self) -> None:
+        self._pending = None
+        if self._timer is not None:
+            self._timer.cancel()
+            self._timer = None
+
+    def _deferred(self) -> None:
+        self._timer = None
+        try:
+            self._finish()
+        except Exception as exc:   # a bug: shown, not lost in the kernel's log
+            self.refusals.refuse(f"internal error, please report it: {type(exc).__name__}: "
+                                 f"{exc}")
+            raise
+
+    @property
+    def pending(self) -> bool:
+        """True while an edit's study waits to be finished (in a kernel, for a moment)."""
+        return self._pending is not None
+
+    def _finish(self) -> None:
+        """Finish the pending study and redraw everything; a refusal of the study puts the
+        last accepted inputs and results back (the chart drawn from the preview too)."""
+        q = self._pending
+        if q is None:
+            return
+        self._pending = None
+        if self._timer is not None:
+            self._timer.cancel()
+            self._timer = None
+        out = self.refusals.attempt(
+            lambda: self._run(q.scenario, q.pumps, preview=q.preview))
+        if out is None:
+            self.scenario, self.pumps = self._accepted
+            self._draw()
+            return
+        self._accept(out)
+
+    @property
+    def study(self):
+        """The study of the accepted inputs (an edit's pending study is finished first)."""
+        self._finish()
+        return self._study
+
+    @study.setter
+    def study(self, value) -> None:
+        self._study = value
+
+    @property
+    def results(self):
+        """The :class:`kit.results.Results` of :attr:`study` (finished first, as there)."""
+        self._finish()
+        return self._results
+
+    @results.setter
+    def results(self, value) -> None:
+        self._results = value
 
     # ------------------------------------------------------------------ drawing
     def _build_traces(self, go, fig) -> None:
@@ -513,13 +622,14 @@ class PumpSelectionApp(widgets.VBox):
         grey = "rgba(90,90,90,0.55)"
         fig.add_trace(go.Scatter(name="system band, lowest", mode="lines", showlegend=False,
                                  line=dict(color=grey, width=1), hoverinfo="skip"), 1, 1)
-        fig.add_trace(go.Scatter(name="system band (8 curves)", mode="lines", fill="tonexty",
-                                 fillcolor="rgba(120,120,120,0.18)",
+        fig.add_trace(go.Scatter(name=f"system band ({n_cond} curves)", mode="lines",
+                                 fill="tonexty", fillcolor="rgba(120,120,120,0.18)",
                                  line=dict(color=grey, width=1), hoverinfo="skip"), 1, 1)
-        for i in range(n_cond):
-            fig.add_trace(go.Scatter(name=f"system curve {i + 1}", mode="lines",
-                                     showlegend=False, line=dict(color=grey, width=0.7,
-                                                                 dash="dot")), 1, 1)
+        # every condition's curve in one trace, the curves apart by a gap (NaN): one trace
+        # to draw instead of one per condition; the hover names the condition
+        fig.add_trace(go.Scatter(name="system curves, each condition", mode="lines",
+                                 showlegend=False, line=dict(color=grey, width=0.7, dash="dot"),
+                                 hovertemplate="%{text}<extra></extra>"), 1, 1)
         fig.add_trace(go.Scatter(name="required flow", mode="lines",
                                  line=dict(color="black", width=1.2, dash="dash")), 1, 1)
         for k, pump in enumerate(self.pumps):
@@ -559,8 +669,10 @@ class PumpSelectionApp(widgets.VBox):
         fs = sorted(self.results.findings, key=lambda f: -Severity(f.severity).rank)
         self.findings.show(fs)
 
-    def _draw(self) -> None:
-        s, sysm = self.study, self.display
+    def _draw(self, s=None) -> None:
+        """Show the pump chart of the study (or of ``s``, a preview of the edit's study)."""
+        s = s if s is not None else self.study
+        sysm = self.display
         band = s.band
 
         def fx(q):
@@ -571,14 +683,21 @@ class PumpSelectionApp(widgets.VBox):
 
         Q = band.Q
         data = [(Q, band.lower), (Q, band.upper)]
-        data += [(Q, band.H[i]) for i in range(len(band.conditions))]
+        # each condition's dotted curve on every 4th grid flow and the last (61 of 241:
+        # the curves are smooth; the band's edges keep every flow)
+        pick = np.unique(np.r_[np.arange(0, len(Q), 4), len(Q) - 1])
+        gap = np.array([np.nan])
+        n_cond = len(band.conditions)
+        data.append((np.concatenate([np.r_[Q[pick], gap] for _ in range(n_cond)]),
+                     np.concatenate([np.r_[band.H[i][pick], gap] for i in range(n_cond)])))
+        texts = {2: [t for c in band.conditions
+                     for t in [html.escape(c.label)] * len(pick) + [""]]}
         h_top = max(float(np.max(band.upper)), max(p.shutoff_head for p in s.pumps))
         if s.required_flow is not None:
             data.append((np.array([s.required_flow, s.required_flow]),
                          np.array([0.0, 1.5 * h_top])))
         else:
             data.append((np.array([]), np.array([])))
-        texts = {}
         por = BEP_REGIONS["low_specific_speed"]["por"]
         for pump in s.pumps:
             Qp = np.linspace(0.0, pump.q_end, 121)
@@ -614,9 +733,6 @@ class PumpSelectionApp(widgets.VBox):
             if i in texts:
                 tr["text"] = texts[i]
             traces.append(tr)
-        for i, cond in enumerate(band.conditions):
-            traces[2 + i]["name"] = f"system: {cond.label}"
-            traces[2 + i]["hovertemplate"] = f"{html.escape(cond.label)}<extra></extra>"
         q_top = max(float(Q[-1]), max(p.q_end for p in s.pumps))
         # one range for both rows, from this system's numbers
         x_range = [0, _nice_top(float(fx(q_top)) * 1.02)]

@@ -53,17 +53,22 @@ from kit.studies.integrity import METHODS as INTEGRITY_METHODS
 
 __all__ = [
     "ARRANGEMENTS", "PUMP_KEYS", "GRID_POINTS", "POLISH_TOL", "PumpStudy", "build_pumps",
-    "build_pump", "study", "compute", "control_condition", "findings_summary", "results_of",
+    "build_pump", "study", "preview", "PumpPreview", "compute", "control_condition",
+    "findings_summary", "results_of",
 ]
 
-def control_condition(system, Q_req: float):
+def control_condition(system, Q_req: float, heads=None):
     """The band condition with the highest system head at the required flow.
 
     Speed control and throttling are compared on it: the pump must meet the duty there, and
-    the saving found on it is the least over the band (conservative).
+    the saving found on it is the least over the band (conservative). ``heads``: label ->
+    the condition's system head callable (default the exact curve).
     """
     conds = system.conditions()
-    heads = [float(system.curve(np.array([Q_req]), c)[0]) for c in conds]
+    if heads is None:
+        heads = [float(system.curve(np.array([Q_req]), c)[0]) for c in conds]
+    else:
+        heads = [float(heads[c.label](np.array([Q_req]))[0]) for c in conds]
     return conds[int(np.argmax(heads))]
 
 
@@ -222,6 +227,85 @@ def _curves(system, band) -> list:
             for i, c in enumerate(band.conditions)]
 
 
+class _Heads:
+    """The exact system head of one band condition, remembered per flow array.
+
+    Every candidate asks for the head at the same required flow (the duty energy, the
+    control comparison, the control condition): the exact curve is evaluated once per
+    distinct flow array (its bytes are the key, so the value is exact, never interpolated).
+    At most :data:`_HEADS_MEMO` flow arrays are kept; then the memo starts again.
+    """
+
+    def __init__(self, system, condition):
+        self.system, self.condition, self.memo = system, condition, {}
+
+    def __call__(self, q):
+        q = np.asarray(q, dtype=float)
+        key = (q.shape, q.tobytes())
+        out = self.memo.get(key)
+        if out is None:
+            if len(self.memo) >= _HEADS_MEMO:
+                self.memo.clear()
+            out = self.memo[key] = np.asarray(self.system.curve(q, self.condition), dtype=float)
+            out.flags.writeable = False
+        return out
+
+
+#: Flow arrays remembered per condition by :class:`_Heads`.
+_HEADS_MEMO = 64
+
+
+class _SystemPart:
+    """What a study computes from the system alone, kept for the next study of the same
+    system (an edit of a pump datasheet leaves the system as it was): the system object,
+    the band and its splines per grid top flow, and each condition's exact heads."""
+
+    def __init__(self, system):
+        self.system = system
+        self.grids: dict = {}
+        self.heads = {c.label: _Heads(system, c) for c in system.conditions()}
+
+    def band(self, q_top: float):
+        """(band, curves, npsha grid) on :data:`GRID_POINTS` flows from 0 to ``q_top``."""
+        hit = self.grids.get(q_top)
+        if hit is None:
+            if len(self.grids) >= 4:
+                self.grids.clear()
+            Q = np.linspace(0.0, q_top, GRID_POINTS)
+            band = self.system.band(Q)
+            curves = _curves(self.system, band)
+            hit = self.grids[q_top] = (band, curves,
+                                       np.stack([c.npsha_grid for c in curves]))
+        return hit
+
+
+#: Recent systems: key -> _SystemPart (most recent last), at most _SYSTEM_PARTS_SIZE.
+_SYSTEM_PARTS: dict = {}
+_SYSTEM_PARTS_SIZE = 8
+
+
+def _system_part(sc, system) -> _SystemPart:
+    """The :class:`_SystemPart` of ``system``, shared with earlier studies of a scenario
+    whose document is the same apart from its ``[[pumps]]`` (the system is built from the
+    other tables only: site, liquid, temperatures, source, destination, lines, pump
+    elevation); a fresh one when the scenario is given as typed inputs."""
+    import json
+
+    from kit.scenario import Scenario
+
+    if not isinstance(sc, Scenario):
+        return _SystemPart(system)
+    doc = {k: v for k, v in sc.doc.items() if k != "pumps"}
+    key = (json.dumps(doc, sort_keys=True, default=repr), str(sc.source))
+    part = _SYSTEM_PARTS.pop(key, None)
+    if part is None:
+        part = _SystemPart(system)
+        while len(_SYSTEM_PARTS) >= _SYSTEM_PARTS_SIZE:
+            _SYSTEM_PARTS.pop(next(iter(_SYSTEM_PARTS)))
+    _SYSTEM_PARTS[key] = part
+    return part
+
+
 def _points(system, pumps, band, curves, application) -> tuple[dict, dict]:
     """Operating points of every pump over the band's conditions, and the errors.
 
@@ -268,7 +352,54 @@ def _points(system, pumps, band, curves, application) -> tuple[dict, dict]:
     return points, errors
 
 
-def study(sc, pumps=None, system=None) -> PumpStudy:
+@dataclass
+class PumpPreview:
+    """The first part of a study: the band and every candidate's operating points on it,
+    what the pump chart draws (:func:`preview`); :func:`study` finishes it (``preview=``)."""
+
+    system: object
+    band: object
+    pumps: list
+    points: dict
+    errors: dict
+    required_flow: float | None
+    npsha: np.ndarray
+    viscous: list
+    water: list
+    curves: list
+    q_top: float
+
+    def good(self, name: str) -> list:
+        return [p for p in self.points[name] if p is not None]
+
+
+def preview(sc, pumps=None) -> PumpPreview:
+    """The band and the candidates' operating points on it (the start of :func:`study`,
+    same methods): enough to draw the pump chart before the rest of the study is done.
+
+    >>> from kit.notebook import scenario_path
+    >>> from kit import scenario as scn
+    >>> sc = scn.load(scenario_path("kestrel_ridge_booster.toml"))
+    >>> pv = preview(sc)
+    >>> s = study(sc, preview=pv)
+    >>> all(s.points[n] == pv.points[n] for n in s.points)
+    True
+    """
+    inp = sc if isinstance(sc, PumpInputs) else read(sc)
+    part = _system_part(sc, inp.system)
+    system = part.system
+    pumps = list(pumps) if pumps is not None else list(inp.pumps)
+    from kit.studies.pump_duties import viscous_pumps
+
+    pumps, viscous, water = viscous_pumps(system, pumps, inp.duties)
+    q_top = max(p.q_end for p in pumps)
+    band, curves, npsha_grid = part.band(q_top)
+    points, errors = _points(system, pumps, band, curves, inp.npsh_application)
+    return PumpPreview(system, band, pumps, points, errors, inp.required_flow, npsha_grid,
+                       viscous, water, curves, q_top)
+
+
+def study(sc, pumps=None, system=None, preview=None) -> PumpStudy:
     """Operating points of every pump over the system band, NPSH, BEP, motor and energy.
 
     Parameters
@@ -279,6 +410,9 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
         Candidates; default those of ``[[pumps]]`` [-]
     system : kit.core.system.System, optional
         Default the scenario's [-]
+    preview : PumpPreview, optional
+        :func:`preview` of the same ``sc`` and ``pumps``: its operating points are used,
+        not found again [-]
 
     Returns
     -------
@@ -293,19 +427,26 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
     )
 
     inp = sc if isinstance(sc, PumpInputs) else read(sc)
-    system = system or inp.system
-    pumps = list(pumps) if pumps is not None else list(inp.pumps)
+    if system is None:
+        part = _system_part(sc, inp.system)
+        system = part.system
+    else:
+        part = _SystemPart(system)
     from kit.studies.pump_duties import duties_study, viscous_pumps
 
-    pumps, viscous, water = viscous_pumps(system, pumps, inp.duties)
     q_req, application = inp.required_flow, inp.npsh_application
     hours, tariff, series = inp.hours, inp.tariff, inp.motor_series
-    q_top = max(p.q_end for p in pumps)
-    Q = np.linspace(0.0, q_top, GRID_POINTS)
-    band = system.band(Q)
-    curves = _curves(system, band)
-    npsha_grid = np.stack([c.npsha_grid for c in curves])
-    points, errors = _points(system, pumps, band, curves, application)
+    if preview is not None and preview.system is system:
+        pumps, viscous, water = list(preview.pumps), preview.viscous, preview.water
+        band, curves, npsha_grid = preview.band, preview.curves, preview.npsha
+        points, errors = preview.points, preview.errors
+    else:
+        pumps = list(pumps) if pumps is not None else list(inp.pumps)
+        pumps, viscous, water = viscous_pumps(system, pumps, inp.duties)
+        q_top = max(p.q_end for p in pumps)
+        band, curves, npsha_grid = part.band(q_top)
+        points, errors = _points(system, pumps, band, curves, application)
+    Q = band.Q
     motors, energy, verdicts, findings = {}, {}, {}, {}
     for pump in pumps:
         pts, errs = points[pump.name], errors[pump.name]
@@ -359,7 +500,8 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
                 "falls short of the required flow at some condition of the band", "the duty"))
         findings[pump.name] = fl
         verdicts[pump.name] = worst(fl).value
-    duty_energy, duty_text = _duty_energy(system, pumps, band, q_req, hours, motors)
+    duty_energy, duty_text = _duty_energy(system, pumps, band, q_req, hours, motors,
+                                          part.heads)
     order = {"pass": 0, "check": 1, "fail": 2}
 
     def _rank(p):
@@ -374,12 +516,12 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
     if rec is not None and q_req is not None and hours > 0:
         pump = next(p for p in pumps if p.name == rec)
         if not hasattr(pump, "members_at"):
-            cond = control_condition(system, q_req)
+            cond = control_condition(system, q_req, part.heads)
             control_label = cond.label
             rating = motors[rec].rating if motors[rec] else None
             try:
                 control = compare_control(
-                    pump, lambda q, _c=cond: system.curve(q, _c), q_req,
+                    pump, part.heads[cond.label], q_req,
                     rho=system.state(cond.T).rho, hours=hours,
                     motor_efficiency=_motor_eta(motor_efficiency, rating) if rating else 0.9,
                     drive_rating=rating)
@@ -405,15 +547,18 @@ def study(sc, pumps=None, system=None) -> PumpStudy:
                      duties)
 
 
-def _duty_energy(system, pumps, band, q_req, hours, motors) -> tuple[dict, str]:
+def _duty_energy(system, pumps, band, q_req, hours, motors, heads=None) -> tuple[dict, str]:
     """Each candidate at the required flow, throttled, over every band condition
-    (:func:`kit.core.operating.energy_at_duty`): energy per volume on the same duty."""
+    (:func:`kit.core.operating.energy_at_duty`): energy per volume on the same duty.
+    ``heads``: label -> the condition's exact system head (:class:`_Heads`), default built
+    here."""
     from kit.core.motors import motor_efficiency
     from kit.core.operating import energy_at_duty
 
     if q_req is None:
         return {}, ""
-    conds = {c.label: (lambda q, _c=c: system.curve(q, _c)) for c in band.conditions}
+    heads = heads or {c.label: _Heads(system, c) for c in band.conditions}
+    conds = {c.label: heads[c.label] for c in band.conditions}
     rho = max(system.state(system.T_min).rho, system.state(system.T_max).rho)
     out, text = {}, ""
     for pump in pumps:

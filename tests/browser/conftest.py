@@ -13,8 +13,11 @@ Fixtures
 Helpers
 -------
 - :func:`open_and_run` opens a notebook with ``?reset``, waits until its kernel is connected
-  and idle, runs all cells from the Run menu, waits until no cell is busy, and asserts that no
-  output has the stderr or error mime type.
+  and idle, runs all cells from the Run menu, waits until every code cell of the notebook's
+  model has an execution count and the kernel is not busy (the model, through
+  ``window.jupyterapp``: JupyterLab renders only the cells near the view, so the DOM cannot
+  say), and asserts that no cell has an error or stderr output; on a timeout it says which
+  cells have no count.
 - :func:`screenshot` saves a PNG into ``artifacts/`` at the repo root.
 - :class:`Dom` (fixture ``dom``): reading and waiting on the page's DOM: an element's text,
   a chart's trace paths, waits until they change, a dropdown choice by its label, the time
@@ -130,7 +133,10 @@ def lab(tmp_path_factory):
     cmd = [sys.executable, "-m", "jupyterlab", "--no-browser", "--ServerApp.ip=127.0.0.1",
            f"--ServerApp.port={port}", "--ServerApp.port_retries=0",
            f"--IdentityProvider.token={token}", f"--ServerApp.root_dir={root}",
-           "--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate"]
+           "--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate",
+           # window.jupyterapp: the notebook's model (every cell's execution count and
+           # outputs, whether or not JupyterLab has rendered the cell) for open_and_run
+           "--LabApp.expose_app_in_browser=True"]
     if hasattr(os, "geteuid") and os.geteuid() == 0:
         cmd.append("--allow-root")
     log = base / "jupyterlab.log"
@@ -219,7 +225,46 @@ def kernel_idle_and_connected(lab: Lab, relpath: str) -> bool:
     return False
 
 
+#: The open notebook's code cells from its model (``window.jupyterapp``, exposed by the
+#: server's ``expose_app_in_browser``): JupyterLab renders only the cells near the view, so
+#: the model, not the DOM, says whether every cell ran and what each one printed. None when
+#: the model is not reachable (the DOM prompts are read then).
+_MODEL_CELLS = """() => {
+  const app = window.jupyterapp;
+  const w = app && app.shell && app.shell.currentWidget;
+  const cells = w && w.content && w.content.model && w.content.model.cells;
+  if (!cells) return null;
+  const out = [];
+  for (let i = 0; i < cells.length; i++) {
+    const c = cells.get(i);
+    if (c.type !== 'code') continue;
+    const bad = [];
+    for (let j = 0; j < c.outputs.length; j++) {
+      const o = c.outputs.get(j).toJSON();
+      if (o.output_type === 'error') bad.push((o.ename + ': ' + o.evalue).slice(0, 2000));
+      if (o.output_type === 'stream' && o.name === 'stderr') bad.push(String(o.text).slice(0, 2000));
+    }
+    out.push({n: c.executionCount, bad: bad});
+  }
+  return out;
+}"""
+
 _ALL_DONE = """() => {
+  const app = window.jupyterapp;
+  const w = app && app.shell && app.shell.currentWidget;
+  const cells = w && w.content && w.content.model && w.content.model.cells;
+  const busy = w && w.sessionContext && w.sessionContext.session &&
+    w.sessionContext.session.kernel && w.sessionContext.session.kernel.status === 'busy';
+  if (cells) {
+    let code = 0;
+    for (let i = 0; i < cells.length; i++) {
+      const c = cells.get(i);
+      if (c.type !== 'code') continue;
+      code++;
+      if (!c.executionCount) return false;
+    }
+    return code > 0 && !busy;
+  }
   const prompts = [...document.querySelectorAll('.jp-NotebookPanel:not(.lm-mod-hidden) '
                                               + '.jp-CodeCell .jp-InputArea-prompt')];
   if (prompts.length === 0) return false;
@@ -256,9 +301,18 @@ def open_and_run(page, lab: Lab, relpath: str, timeout: float = 180.0) -> dict:
     page.locator(".lm-MenuBar-itemLabel", has_text="Run").first.click()
     page.locator("li.lm-Menu-item[data-command='runmenu:run-all']").click()
     page.wait_for_function(_STARTED, timeout=30_000)
-    page.wait_for_function(_ALL_DONE, timeout=timeout * 1000, polling=100)
+    try:
+        page.wait_for_function(_ALL_DONE, timeout=timeout * 1000, polling=100)
+    except Exception as exc:     # say which cells have no count and what they printed
+        cells = page.evaluate(_MODEL_CELLS)
+        todo = [i for i, c in enumerate(cells or []) if not c["n"]]
+        raise AssertionError(f"{relpath}: Run All not finished in {timeout:.0f} s; code cells "
+                             f"with no execution count (0-based): {todo}; errors: "
+                             f"{[c['bad'] for c in cells or [] if c['bad']]}") from exc
     t_run = time.monotonic() - t1
-    bad = page.evaluate(_BAD_OUTPUTS)
+    cells = page.evaluate(_MODEL_CELLS)
+    assert cells is not None, "the notebook's model is not reachable (expose_app_in_browser)"
+    bad = [b for c in cells for b in c["bad"]] + page.evaluate(_BAD_OUTPUTS)
     assert not bad, f"{relpath}: stderr or error output:\n" + "\n---\n".join(bad)
     return {"open": t_open, "run": t_run}
 

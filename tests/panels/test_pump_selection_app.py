@@ -319,3 +319,126 @@ def test_the_chart_is_sent_packed_and_the_static_figure_has_the_same_numbers(app
     x = unpacked(band["x"])
     assert x[-1] == pytest.approx(app.study.band.Q[-1] * 3600.0, rel=1e-12)   # m³/h
     assert list(app.figure.data[0].x) == list(x)
+
+
+class _Loop:
+    """A stand-in for the kernel's event loop: keeps the callbacks scheduled on it."""
+
+    def __init__(self):
+        self.waiting = []
+
+    def call_later(self, delay, fn):
+        loop = self
+
+        class Handle:
+            def cancel(self):
+                if self in loop.waiting_handles:
+                    i = loop.waiting_handles.index(self)
+                    loop.waiting_handles.pop(i)
+                    loop.waiting.pop(i)
+
+        h = Handle()
+        self.waiting.append(fn)
+        self.waiting_handles = getattr(self, "waiting_handles", []) + [h]
+        return h
+
+    def run(self):
+        fns, self.waiting, self.waiting_handles = self.waiting, [], []
+        for fn in fns:
+            fn()
+
+
+@pytest.fixture
+def kernel(monkeypatch):
+    """The app as in a kernel: an edit's study is finished from the (stand-in) loop."""
+    import kit.panels.pump_selection_app as mod
+
+    loop = _Loop()
+    monkeypatch.setattr(mod, "kernel_loop", lambda: loop)
+    return loop
+
+
+def _chart(app):
+    return [dict(t) for t in app.plot.data]
+
+
+def test_in_a_kernel_an_edit_draws_the_chart_first_and_the_study_follows(app, scenario,
+                                                                          kernel):
+    """The chart drawn from the preview is the chart of the finished study; until the loop
+    runs the study, the tables are the last ones and the study is pending; reading
+    ``app.study`` finishes it (a notebook cell never sees a half-done study)."""
+    table0, status0 = app.candidates.value, app.status.value
+    chart0 = json_of(app.plot.data)
+    app.editor.set_point(3, head="75")
+    assert app.pending and len(kernel.waiting) == 1
+    chart_quick = json_of(app.plot.data)
+    assert chart_quick != chart0                       # the chart moved at once
+    assert app.candidates.value == table0 and app.status.value == status0
+    kernel.run()
+    assert not app.pending
+    assert json_of(app.plot.data) == chart_quick       # the finished study draws the same
+    assert app.candidates.value != table0
+    # the same edit made on a fresh app outside a kernel gives the same results
+    ref = PumpSelectionApp(scenario)
+    ref_recomputes = ref.recomputes
+    import kit.panels.pump_selection_app as mod
+    mod_loop = mod.kernel_loop
+    mod.kernel_loop = lambda: None
+    try:
+        ref.editor.set_point(3, head="75")
+    finally:
+        mod.kernel_loop = mod_loop
+    assert ref.recomputes == ref_recomputes + 1
+    assert_same_results(app.results, ref.results)
+    assert json_of(ref.plot.data) == chart_quick
+
+
+def json_of(data):
+    import json
+
+    return json.dumps(data, sort_keys=True, default=repr)
+
+
+def test_reading_the_study_finishes_a_pending_edit(app, kernel):
+    app.editor.set_point(3, head="74")
+    assert app.pending
+    rec = app.study.recommended                       # finishes it
+    assert not app.pending and kernel.waiting == [] and rec
+    assert "74" in json_of(app.scenario.doc["pumps"][0]["head"])
+
+
+def test_a_newer_edit_replaces_the_one_waiting(app, kernel):
+    app.editor.set_point(3, head="74")
+    app.editor.set_point(3, head="73")
+    assert len(kernel.waiting) == 1
+    kernel.run()
+    assert "73" in json_of(app.scenario.doc["pumps"][0]["head"])
+    assert app.recomputes == 2                        # the first and the last edit only
+
+
+def test_a_value_seen_before_needs_no_deferred_study(app, kernel):
+    app.editor.set_point(3, head="74")
+    kernel.run()
+    app.editor.set_point(3, head="70")                # the scenario's own value
+    assert not app.pending and kernel.waiting == []
+
+
+def test_a_study_refused_after_the_preview_puts_the_last_inputs_back(app, kernel,
+                                                                     monkeypatch):
+    """A refusal found only by the full study (after the chart was drawn from the preview)
+    marks the results stale and restores the last accepted inputs and chart."""
+    from kit.errors import InputError
+
+    chart0 = json_of(app.plot.data)
+    head0 = json_of(app.scenario.doc["pumps"][0]["head"])
+    app.editor.set_point(3, head="74")
+    assert json_of(app.plot.data) != chart0
+
+    def refuse(*a, **k):
+        raise InputError("test field", 1.0, "must be refused here")
+
+    monkeypatch.setattr(ps, "study", refuse)
+    kernel.run()
+    assert "must be refused here" in app.message.value
+    assert json_of(app.plot.data) == chart0
+    assert json_of(app.scenario.doc["pumps"][0]["head"]) == head0
