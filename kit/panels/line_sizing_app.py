@@ -71,6 +71,7 @@ from kit.panels.base import (
     check_system,
     error_html,
     field_value,
+    kernel_loop,
     panel_value,
     section_heading,
     shown_value,
@@ -96,7 +97,12 @@ from kit.panels.workspace import status_html
 from kit.studies import line_sizing as ls
 from kit.textout import display_words
 
-__all__ = ["LineSizingApp", "BoreChart", "CANDIDATE_COLUMNS", "BATCH_COLUMNS", "CRITERIA_NOTE"]
+__all__ = ["LineSizingApp", "BoreChart", "CANDIDATE_COLUMNS", "BATCH_COLUMNS", "CRITERIA_NOTE",
+           "RENDER_DELAY"]
+
+#: Seconds between an edit's bore chart and the rest of its render (tables, profile,
+#: findings, status), in a kernel: the browser draws the chart before the tables arrive.
+RENDER_DELAY = 0.08
 
 #: The label beside the duty-class criteria.
 CRITERIA_NOTE = "common practice, no source, editable"
@@ -323,6 +329,7 @@ class LineSizingApp(widgets.VBox):
         self.erosional_C = inp.erosional_C
         self._scenario_duty = inp.duty   # the duty as the scenario set it (with its criteria)
         self.study: ls.SizingStudy | None = None
+        self._rest_timer = None    # the render after the bore chart, waiting (kernel)
         self.shown: int | None = None
         self._pinned: str | None = None   # nominal size the user chose for the profile
         self._cache: dict = {}
@@ -545,7 +552,7 @@ class LineSizingApp(widgets.VBox):
         if change is not None and isinstance(change, dict):
             self._last_edited = change.get("owner")
         if not self._hold:
-            self.recompute()
+            self.recompute(defer=True)
 
     def _locate(self, exc):
         """The input a kit error is about (by the field it names), or None."""
@@ -749,8 +756,12 @@ class LineSizingApp(widgets.VBox):
                 inp.erosional_C)
 
     # ------------------------------------------------------------------ compute and render
-    def recompute(self) -> None:
-        """Read the panels, size the line (cached per input) and re-render the results."""
+    def recompute(self, defer: bool = False) -> None:
+        """Read the panels, size the line (cached per input) and re-render the results.
+
+        ``defer`` (an edit): in a kernel, the bore chart is drawn at once and the tables,
+        profile, findings and status follow from the kernel's event loop
+        :data:`RENDER_DELAY` seconds later (:meth:`settle` does them at once)."""
         def run():
             inp = self.read_inputs()
             key = self._key(inp)
@@ -769,12 +780,31 @@ class LineSizingApp(widgets.VBox):
         inp, res = out
         self.study = ls.SizingStudy(inp, res)
         self.findings.topics = ls.caution_topics(inp)
-        self._render()
+        self._render(defer=defer)
 
-    def _render(self) -> None:
-        st = self.study
+    def _render(self, defer: bool = False) -> None:
         # the bore chart first: its update leaves for the browser before the table's
         self._render_criteria_charts()
+        loop = kernel_loop() if defer else None
+        if loop is None:
+            self.settle()
+            return
+        if self._rest_timer is not None:
+            self._rest_timer.cancel()
+        self._rest_timer = loop.call_later(RENDER_DELAY, self.settle)
+
+    @property
+    def settled(self) -> bool:
+        """False while the tables, profile, findings and status wait for the loop."""
+        return self._rest_timer is None
+
+    def settle(self) -> None:
+        """Render what follows the bore chart (the candidate table, size choice, profile,
+        findings and status) from the study now, if it is waiting."""
+        if self._rest_timer is not None:
+            self._rest_timer.cancel()
+            self._rest_timer = None
+        st = self.study
         rows = ls.candidate_rows(st)
         label = st.inputs.duty.label + ": "
         for r, c in zip(rows, st.result.candidates, strict=True):
@@ -1004,6 +1034,8 @@ class LineSizingApp(widgets.VBox):
     def set_system(self, system: str) -> None:
         """Show every quantity in ``system`` ('SI' or 'US'); typed text is kept."""
         self.system = check_system(system)
+        if not self.settled:
+            self.settle()
         for p in (self.flow_design, self.flow_min, self.flow_max, self.v_min, self.v_max,
                   self.dp_max, self.length, self.start_elevation, self.end_pressure,
                   self.vapour_margin, self.fluid, self.fittings, self.table, self.batch_table,
@@ -1022,4 +1054,6 @@ class LineSizingApp(widgets.VBox):
     def figures(self) -> list:
         """Static copies (plotly ``go.Figure``) of the charts, for the record: velocity and
         pressure drop against bore (one figure, two panels), then the HGL profile."""
+        if not self.settled:
+            self.settle()
         return [c.to_figure() for c in (self.bore_chart, self.profile_chart)]

@@ -419,3 +419,50 @@ def test_a_liquid_temperature_out_of_range_is_refused_in_degf_at_its_field(app):
     assert "hl-stale" in app.bore_chart._dom_classes
     t.set_text("60 degF")
     assert t.message.value == "" and "hl-stale" not in app.bore_chart._dom_classes
+
+
+def test_in_a_kernel_an_edit_draws_the_bore_chart_first_and_the_rest_follows(sc, monkeypatch):
+    """In a kernel, a design-flow edit sends the bore chart at once; the table, profile,
+    findings and status follow from the loop, and are then what the same edit gives outside
+    a kernel (everything at once)."""
+    import json
+
+    from fakeloop import FakeLoop
+
+    import kit.panels.line_sizing_app as mod
+
+    def state(a):
+        return json.dumps([a.bore_chart.view.data, [dict(r) for r in a.table.value],
+                           a.status.value, a.profile_chart.view.data,
+                           [f.rule for f in a.findings.value]], sort_keys=True, default=repr)
+
+    ref = LineSizingApp.from_scenario(sc)
+    ref.flow_design.set_text("360 gpm")
+    loop = FakeLoop()
+    monkeypatch.setattr(mod, "kernel_loop", lambda: loop)
+    app = LineSizingApp.from_scenario(sc)
+    assert app.settled                               # the first render is whole
+    table0, status0 = app.table.value, app.status.value
+    app.flow_design.set_text("360 gpm")
+    assert not app.settled and len(loop.waiting) == 1
+    assert app.bore_chart.view.data == ref.bore_chart.view.data   # the chart at once
+    assert app.table.value == table0 and app.status.value == status0
+    app.flow_design.set_text("361 gpm")
+    assert len(loop.waiting) == 1                    # a newer edit replaces the one waiting
+    app.flow_design.set_text("360 gpm")
+    loop.run()
+    assert app.settled and loop.waiting == []
+    assert state(app) == state(ref)
+    # a refused edit leaves the waiting render of the last accepted study to run
+    app.flow_design.set_text("361 gpm")
+    app.flow_design.set_text("9000 gpm")             # above the maximum flow: refused
+    assert "hl-field-error" in app.flow_design._dom_classes
+    loop.run()
+    ref.flow_design.set_text("361 gpm")
+    ref.settle()                                     # the loop is patched for ref too
+    assert json.dumps(app.table.value, default=repr) == json.dumps(ref.table.value, default=repr)
+    # the record's figures settle a waiting render first
+    app.flow_design.set_text("360 gpm")
+    assert not app.settled
+    figs = app.figures()
+    assert app.settled and len(figs) == 2

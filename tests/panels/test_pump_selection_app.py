@@ -321,39 +321,14 @@ def test_the_chart_is_sent_packed_and_the_static_figure_has_the_same_numbers(app
     assert list(app.figure.data[0].x) == list(x)
 
 
-class _Loop:
-    """A stand-in for the kernel's event loop: keeps the callbacks scheduled on it."""
-
-    def __init__(self):
-        self.waiting = []
-
-    def call_later(self, delay, fn):
-        loop = self
-
-        class Handle:
-            def cancel(self):
-                if self in loop.waiting_handles:
-                    i = loop.waiting_handles.index(self)
-                    loop.waiting_handles.pop(i)
-                    loop.waiting.pop(i)
-
-        h = Handle()
-        self.waiting.append(fn)
-        self.waiting_handles = getattr(self, "waiting_handles", []) + [h]
-        return h
-
-    def run(self):
-        fns, self.waiting, self.waiting_handles = self.waiting, [], []
-        for fn in fns:
-            fn()
-
-
 @pytest.fixture
 def kernel(monkeypatch):
     """The app as in a kernel: an edit's study is finished from the (stand-in) loop."""
+    from fakeloop import FakeLoop
+
     import kit.panels.pump_selection_app as mod
 
-    loop = _Loop()
+    loop = FakeLoop()
     monkeypatch.setattr(mod, "kernel_loop", lambda: loop)
     return loop
 
