@@ -506,10 +506,12 @@ def schematic_figure(net, result, *, index_circuit=(), index_node: str | None = 
     data = [dict(type="scatter", name="index circuit", x=idx_x, y=idx_y, mode="lines",
                  line=dict(color=_INDEX, width=14), hoverinfo="skip",
                  showlegend=bool(idx_x))]
+    # every class in the legend, with links in it or not: the legend is the colour key, and
+    # a link moving from one class to another changes no more than the traces' points
     for c in range(n_cls):
         data.append(dict(type="scatter", name=labels[c], x=cls_x[c], y=cls_y[c], mode="lines",
                          line=dict(color=CLASS_COLOURS[c], width=4), hoverinfo="skip",
-                         showlegend=bool(cls_x[c])))
+                         showlegend=True))
     data.append(dict(type="scatter", name="no bore given (pump, valve, equipment)" if rows
                      is not None
                      else "link", x=grey_x, y=grey_y, mode="lines",

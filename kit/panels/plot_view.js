@@ -93,8 +93,9 @@ async function pump() {
   }
 }
 
-// The fast path: when only per-point arrays of scatter traces changed (x, y and the hover
-// text: text, hovertext, customdata) and every axis has a fixed range, Plotly.animate with
+// The fast path: when only per-point arrays of scatter traces changed (x, y, the hover
+// text: text, hovertext, customdata, and per-point marker sizes, colours and angles) and
+// every axis has a fixed range, Plotly.animate with
 // redraw: false moves the traces' paths and points and leaves the axes, legends and
 // annotations as drawn (about a quarter of a full Plotly.react of the line-sizing bore chart
 // in JupyterLab; the pump chart's operating points change their hover text on every edit).
@@ -102,16 +103,36 @@ async function pump() {
 // what a full draw would show (checked by tests/browser/test_plot_fast_path.py). Anything
 // else goes through Plotly.react.
 const POINT_ARRAYS = ["x", "y", "text", "hovertext", "customdata"];
+// per-point marker arrays (a size or colour per point) go the same way; a marker attribute
+// that is one value for the trace is part of the trace's style (a change redraws in full)
+const MARKER_ARRAYS = ["size", "color", "angle"];
 
 function withoutPointArrays(trace) {
   const rest = Object.assign({}, trace);
   for (const k of POINT_ARRAYS) delete rest[k];
+  if (rest.marker) {
+    const m = Object.assign({}, rest.marker);
+    for (const k of MARKER_ARRAYS) if (Array.isArray(m[k])) m[k] = "[per point]";
+    rest.marker = m;
+  }
   return JSON.stringify(rest);
+}
+
+function hasPoints(trace) {
+  const x = trace.x;
+  if (Array.isArray(x)) return x.length > 0;
+  if (x && typeof x.bdata === "string") return x.bdata.length > 0;
+  return x !== undefined && x !== null;
 }
 
 function pointArrays(trace) {
   const out = {};
   for (const k of POINT_ARRAYS) if (k in trace) out[k] = trace[k];
+  if (trace.marker) {
+    const m = {};
+    for (const k of MARKER_ARRAYS) if (Array.isArray(trace.marker[k])) m[k] = trace.marker[k];
+    if (Object.keys(m).length) out.marker = m;
+  }
   return out;
 }
 
@@ -128,7 +149,10 @@ function signature(fig) {
     layout: JSON.stringify(fig.layout),
     config: JSON.stringify(fig.config),
     traces: fig.data.map(withoutPointArrays),
-    keys: fig.data.map((t) => POINT_ARRAYS.filter((k) => k in t).join(",")),
+    // which arrays a trace has, and whether it has any point: a trace that gains its first
+    // point or loses its last has no drawn group to move (a full draw makes it)
+    keys: fig.data.map((t) => POINT_ARRAYS.filter((k) => k in t).join(",") +
+      (hasPoints(t) ? "" : ";empty")),
     scatter: fig.data.every((t) => (t.type || "scatter") === "scatter"),
     fixed: fixedAxes(fig.layout),
   };

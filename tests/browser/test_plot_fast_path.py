@@ -55,8 +55,7 @@ HOVERS = r"""async (sel) => {
   Plotly.purge(ref);
   ref.remove();
   return {shown, full, how: gd.dataset.lastDraw, svgSame: JSON.stringify(svgShown) ===
-          JSON.stringify(svgFull), svgShown: svgShown.join('').slice(0, 3000),
-          svgFull: svgFull.join('').slice(0, 3000)};
+          JSON.stringify(svgFull), svgShown: svgShown.join(''), svgFull: svgFull.join('')};
 }"""
 
 
@@ -78,8 +77,10 @@ FAST = {**{k: v for k, v in CASES.items() if k in ("pump_selection", "line_sizin
 
 
 @pytest.mark.parametrize("name", list(FAST))
-def test_fast_redraw_matches_a_full_draw(name, lab, page, open_and_run):
+def test_fast_redraw_matches_a_full_draw(name, lab, page, open_and_run, artifacts):
     notebook, edit = FAST[name]
+    for old in artifacts.glob(f"fast-path-{name}-*"):
+        old.unlink()
     page.set_viewport_size({"width": 1366, "height": 768})
     open_and_run(page, notebook, timeout=300)
     page.evaluate(TO_TOP, WS)
@@ -98,7 +99,11 @@ def test_fast_redraw_matches_a_full_draw(name, lab, page, open_and_run):
         assert got["shown"], "no hover labels read"
         assert any(lbl for _, _, lbl in got["shown"]), got["shown"]
         assert got["shown"] == got["full"], (got["how"], got["shown"], got["full"])
-        assert got["svgSame"], (got["how"], got["svgShown"], got["svgFull"])
+        if not got["svgSame"]:    # both drawings kept for a diff
+            for which in ("svgShown", "svgFull"):
+                (artifacts / f"fast-path-{name}-{which}.svg.txt").write_text(
+                    got[which].replace("><", ">\n<"), encoding="utf-8")
+        assert got["svgSame"], (got["how"], f"see artifacts/fast-path-{name}-*.svg.txt")
     if name != "network":
         assert "paths" in ways, f"{name}: the fast path was never taken ({ways})"
     print(f"\n{name}: draws {sorted(ways)}")

@@ -2,7 +2,8 @@
 
 For each notebook: run all, bring the workspace cell to the top of the notebook, then edit the
 input the engineer steers — the design flow (line sizing), a datasheet point (pump selection),
-the outlet size (tank drainage) — and check, at each viewport size:
+the outlet size (tank drainage), a control valve's opening (network) — and check, at each
+viewport size:
 
 - the main chart is redrawn (its trace paths change) and the status line shows the new value;
 - the edited field and the main chart are both inside the viewport, and neither the notebook
@@ -97,10 +98,37 @@ def _edit_tank_drainage(page, i):
     return (sel, 1), None
 
 
+#: The workspace's control valve 'TV-2' row (its fields are built on "edit") and its
+#: opening box, tagged with ids.
+_TV2 = """() => {
+  const row = [...document.querySelectorAll('.hl-workspace .hl-link-row')].find((r) => {
+    const s = r.querySelector('.hl-row-summary');
+    return s && s.textContent.startsWith('TV-2 control valve');
+  });
+  if (!row) return false;
+  row.id = 'hl-ws-tv2-row';
+  const box = row.querySelector('.hl-opening input');
+  if (box) box.id = 'hl-ws-tv2-opening';
+  return !!box;
+}"""
+
+
+def _edit_network(page, i):
+    if not page.evaluate(_TV2):
+        page.locator("#hl-ws-tv2-row .hl-row-edit").click()
+        page.wait_for_selector("#hl-ws-tv2-row .hl-opening input")
+        assert page.evaluate(_TV2)
+    box = page.locator("#hl-ws-tv2-opening")
+    box.fill(f"{40 + 6 * i} %")
+    box.press("Enter")
+    return ("#hl-ws-tv2-opening", 0), None
+
+
 CASES = {
     "line_sizing": ("notebooks/line_sizing.ipynb", _edit_line_sizing),
     "pump_selection": ("notebooks/pump_selection.ipynb", _edit_pump_selection),
     "tank_drainage": ("notebooks/tank_drainage.ipynb", _edit_tank_drainage),
+    "network_systems": ("notebooks/network_systems.ipynb", _edit_network),
 }
 
 
