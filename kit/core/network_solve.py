@@ -82,9 +82,8 @@ from kit.core.network_model import (
 )
 from kit.errors import InputError, NoSolutionError, check_range
 
-__all__ = ["solve", "NetworkResult", "network_findings", "METHOD", "MAX_FLIPS", "MAX_ROUNDS", "Q_SLOPE_FLOOR",
-           "Q_ZERO",
-           "FINDING_LIMITS"]
+__all__ = ["solve", "NetworkResult", "network_findings", "still_flow", "METHOD", "MAX_FLIPS",
+           "MAX_ROUNDS", "Q_SLOPE_FLOOR", "Q_ZERO", "FINDING_LIMITS"]
 
 from kit.core.constants import G  # noqa: E402  (one gravity constant)
 
@@ -98,6 +97,20 @@ MAX_FLIPS = 4
 #: Flow [m³/s] at or below which a link's flow counts as none in the findings (with 1e-9 of
 #: the largest flow): round-off must not read as reverse flow.
 Q_ZERO = 1e-12
+
+
+def still_flow(Q) -> float:
+    """The flow [m³/s] at or below which a link of a solution with flows ``Q`` has no flow:
+    :data:`Q_ZERO`, or 1e-9 of the largest flow (the solver closes the balance to
+    round-off; the sign of a flow that small means nothing: a dead leg, an expansion-vessel
+    line).
+
+    >>> f"{still_flow([0.02, -1e-15]):.3g}", still_flow([0.0])
+    ('2e-11', 1e-12)
+    """
+    return max(Q_ZERO, 1e-9 * float(np.abs(np.asarray(Q, dtype=float)).max(initial=0.0)))
+
+
 #: Status rounds (solve, re-test non-return links) at most.
 MAX_ROUNDS = 30
 _REL_STEP = 1e-6
@@ -802,7 +815,7 @@ def network_findings(res: NetworkResult, duty="general_transfer",
     rho = res.state.rho
     # flows within round-off of zero (a dead leg, an expansion-vessel line) are no flow: no
     # velocity class applies and their sign means nothing (the solver's closing tolerance)
-    q_eps = max(Q_ZERO, 1e-9 * float(np.abs(res.Q).max(initial=0.0)))
+    q_eps = still_flow(res.Q)
     for i, k in enumerate(net.links):
         subj = f"link '{k.name}'"
         Q = float(res.Q[i])

@@ -63,11 +63,12 @@ import numpy as np
 
 from kit import units
 from kit.core.constants import G
+from kit.core.network_solve import still_flow
 from kit.panels.base import check_system
 from kit.panels.tables import unit_label
 
 __all__ = ["layered_positions", "stress_positions", "schematic_figure", "NetworkSchematic", "COLOUR_CLASSES",
-           "COLOUR_BY", "CLASS_COLOURS", "MARKERS"]
+           "COLOUR_BY", "CLASS_COLOURS", "MARKERS", "LABELS_AS_NOTES"]
 
 #: What the links can be coloured by: key -> (label, quantity kind).
 COLOUR_BY = {
@@ -107,6 +108,11 @@ _MARK_AT = 0.40       # equipment marker placed this far along each link
 
 
 # ---------------------------------------------------------------- layout
+
+#: Up to this many nodes, node names are fixed labels in the layout (not redrawn with the
+#: links); above it, text on the node markers.
+LABELS_AS_NOTES = 120
+
 
 def _adjacency(net) -> tuple[list[str], dict[str, list[str]]]:
     names = list(net.node_names) + list(net.boundary_names)
@@ -460,6 +466,8 @@ def schematic_figure(net, result, *, index_circuit=(), index_node: str | None = 
     arrows = {False: ([], [], [], []), True: ([], [], [], [])}   # reverse? -> x, y, angle, text
     kinds: dict[str, tuple[list, list, list]] = {}
     edges = np.asarray(COLOUR_CLASSES[colour_by])
+    # a round-off flow is no flow: no arrow (its sign means nothing)
+    q_eps = still_flow(result.Q) if result is not None else 0.0
     for i, k in enumerate(net.links):
         (x0, y0), (x1, y1) = pos[k.from_node], pos[k.to_node]
         seg = ([x0, x1, None], [y0, y1, None])
@@ -490,7 +498,7 @@ def schematic_figure(net, result, *, index_circuit=(), index_node: str | None = 
         kx.append(mx)
         ky.append(my)
         kt.append(hover)
-        if row is not None and row["status"] == "open" and row["Q"] != 0.0:
+        if row is not None and row["status"] == "open" and abs(row["Q"]) > q_eps:
             rev = row["Q"] < 0
             sx, sy, ex, ey = (x1, y1, x0, y0) if rev else (x0, y0, x1, y1)
             ax_, ay_, aa, at = arrows[rev]
@@ -543,21 +551,33 @@ def schematic_figure(net, result, *, index_circuit=(), index_node: str | None = 
                      text=pt, hovertemplate="%{text}<extra></extra>", showlegend=False))
     names = list(net.node_names) + list(net.boundary_names)
     nf = len(net.nodes)
+    # node names: fixed labels in the layout (positions never move with an edit, so a redraw
+    # of the links leaves them as drawn) up to LABELS_AS_NOTES nodes, text on the markers
+    # beyond (one text element each is lighter to draw than a layout note)
+    as_notes = len(names) <= LABELS_AS_NOTES
+    notes = []
     for fixed in (False, True):
         sel = [i for i in range(len(names)) if (i >= nf) == fixed]
         sym, col, size = MARKERS["fixed head" if fixed else "junction"]
         text = [names[i] for i in sel]
         hover = ([_node_hover(names[i], i, result, system, p_baro) for i in sel]
                  if result is not None else [html.escape(names[i]) for i in sel])
-        data.append(dict(type="scatter", name="tank or vessel (fixed head)" if fixed
-                         else "junction", x=[pos[names[i]][0] for i in sel],
-                         y=[pos[names[i]][1] for i in sel], mode="markers+text",
-                         text=text, textposition="top center", hovertext=hover,
-                         hovertemplate="%{hovertext}<extra></extra>",
-                         textfont=dict(size=10, color="#333"),
-                         marker=dict(symbol=sym, size=size, color=col,
-                                     line=dict(color="#1f3f7a", width=1.5)),
-                         showlegend=bool(sel)))
+        trace = dict(type="scatter", name="tank or vessel (fixed head)" if fixed
+                     else "junction", x=[pos[names[i]][0] for i in sel],
+                     y=[pos[names[i]][1] for i in sel], mode="markers", hovertext=hover,
+                     hovertemplate="%{hovertext}<extra></extra>",
+                     marker=dict(symbol=sym, size=size, color=col,
+                                 line=dict(color="#1f3f7a", width=1.5)),
+                     showlegend=bool(sel))
+        if as_notes:
+            notes += [dict(x=pos[names[i]][0], y=pos[names[i]][1], text=html.escape(names[i]),
+                           showarrow=False, xanchor="center", yanchor="bottom",
+                           yshift=size / 2 + 1, font=dict(size=10, color="#333"))
+                      for i in sel]
+        else:
+            trace.update(mode="markers+text", text=text, textposition="top center",
+                         textfont=dict(size=10, color="#333"))
+        data.append(trace)
     ix = [pos[index_node][0]] if index_node in pos else []
     iy = [pos[index_node][1]] if index_node in pos else []
     data.append(dict(type="scatter", name="index node", x=ix, y=iy, mode="markers",
@@ -577,6 +597,8 @@ def schematic_figure(net, result, *, index_circuit=(), index_node: str | None = 
         yaxis=dict(visible=False, range=[min(ys) - pad - 0.3, max(ys) + pad + 0.3],
                    autorange=False),
         plot_bgcolor="white")
+    if notes:
+        layout["annotations"] = notes
     return {"data": data, "layout": layout}
 
 

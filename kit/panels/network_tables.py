@@ -44,6 +44,7 @@ import ipywidgets as widgets
 import numpy as np
 
 from kit.core.constants import G
+from kit.core.network_solve import still_flow
 from kit.panels.base import check_system
 from kit.panels.tables import Column, results_table_html
 
@@ -117,13 +118,14 @@ def link_rows(result, index_circuit=()) -> list[dict]:
     index = set(index_circuit or ())
     rows = []
     re = result.reynolds
+    q_eps = still_flow(result.Q)    # a round-off flow is no flow, not reverse flow
     for i, (k, row) in enumerate(zip(result.net.links, result.links_table(), strict=True)):
         seg = getattr(k, "segment", None)
         h = row["head_loss"]
         notes = []
         if row["status"] != "open":
             notes.append("held shut")
-        elif row["Q"] < 0:
+        elif row["Q"] < -q_eps:
             notes.append("reverse flow")
         if k.name in index:
             notes.append("index circuit")
