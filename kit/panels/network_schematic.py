@@ -436,7 +436,8 @@ def schematic_figure(net, result, *, index_circuit=(), index_node: str | None = 
     Returns
     -------
     dict
-        ``{"data": [...], "layout": {...}}``; trace names say what each shows.
+        ``{"data": [...], "layout": {...}}``; trace names say what each shows; a trace
+        with nothing to show holds one empty point (``[None]``).
 
     Examples
     --------
@@ -448,7 +449,8 @@ def schematic_figure(net, result, *, index_circuit=(), index_node: str | None = 
     >>> net = Network("d", [Node("J", 0.0, demand=0.01)], [Boundary("T", 20.0)],
     ...               [PipeLink("P", "T", "J", Segment("P", p, 100.0))], w)
     >>> fig = schematic_figure(net, net.solve(), system="US")
-    >>> [t["name"] for t in fig["data"] if t["x"] and t["mode"] == "lines"]   # 1.22 m/s
+    >>> [t["name"] for t in fig["data"]                      # the links drawn: 1.22 m/s
+    ...  if t["mode"] == "lines" and any(v is not None for v in t["x"])]
     ['velocity 3.28–4.92 ft/s']
     """
     if colour_by not in COLOUR_BY:
@@ -599,7 +601,25 @@ def schematic_figure(net, result, *, index_circuit=(), index_node: str | None = 
         plot_bgcolor="white")
     if notes:
         layout["annotations"] = notes
+    for t in data:
+        _hold_place(t)
     return {"data": data, "layout": layout}
+
+
+def _hold_place(trace: dict) -> None:
+    """A trace with no points gets one empty point (None, drawn as nothing) and its per-point
+    lists one entry: every trace keeps a drawn group, so an edit that moves the last link out
+    of a class (or the first into it) changes the traces' points only and the browser can
+    redraw without a full draw (kit/panels/plot_view.js)."""
+    if trace.get("x"):
+        return
+    trace["x"], trace["y"] = [None], [None]
+    for key in ("text", "hovertext"):
+        if isinstance(trace.get(key), list):
+            trace[key] = [""]
+    marker = trace.get("marker")
+    if isinstance(marker, dict) and isinstance(marker.get("size"), list):
+        trace["marker"] = {**marker, "size": [0]}
 
 
 class NetworkSchematic(widgets.VBox):
