@@ -57,8 +57,15 @@ import numpy as np
 from fluids.numerics import interp
 from fluids.piping import NPS40, S40i
 
-from kit.core.friction import darcy_friction
+from kit.core.friction import (
+    _ED_REFUSE_HIGH,
+    _RE_REFUSE_HIGH,
+    _darcy_array,
+    _darcy_float,
+    darcy_friction,
+)
 from kit.errors import (
+    HeadlineError,
     InputError,
     NoSolutionError,
     OutOfRangeError,
@@ -182,17 +189,20 @@ class FittingKind:
 class FrozenParams(Mapping):
     """A read-only, hashable mapping of parameter name → value (float or str)."""
 
-    __slots__ = ("_items",)
+    __slots__ = ("_items", "_map")
 
     def __init__(self, items=()):
         data = dict(items.items() if isinstance(items, Mapping) else items)
         object.__setattr__(self, "_items", tuple(sorted(data.items())))
+        object.__setattr__(self, "_map", dict(self._items))
 
     def __getitem__(self, key):
-        for k, v in self._items:
-            if k == key:
-                return v
-        raise KeyError(key)
+        return self._map[key]
+
+    def __eq__(self, other):
+        if isinstance(other, FrozenParams):
+            return self._items == other._items  # both sorted by name: same as dict equality
+        return Mapping.__eq__(self, other)
 
     def __iter__(self) -> Iterator:
         return (k for k, _ in self._items)
@@ -788,7 +798,27 @@ def total_K_unchecked(fittings, Re: np.ndarray, D: float, roughness: float,
     """:func:`fittings_K_total` for inputs the caller has already checked (a float array
     Re > 0, a valid bore and roughness); ``fd`` is the pipe's Darcy friction factor at
     ``Re`` when the caller has it (the Rennels bend uses it instead of solving Colebrook
-    again). Used by :class:`kit.core.line.Line` on its hot path."""
+    again). Used by :class:`kit.core.line.Line` on its hot path.
+
+    The rows' Re-independent parts come from a plan cached on the rows' values, the bore
+    and the roughness (:func:`_plan`); a row the plan cannot take, or any doubt on the
+    way (a refused Re or ε/D inside a reducer's friction term, a non-finite K), goes
+    through :func:`_total_K_rows`, row by row, which names the row in its error."""
+    plan = _plan_or_none(fittings, D, roughness)
+    if plan is not None:
+        try:
+            K = _plan_K(plan, Re, fd, D, roughness)
+        except _Fallback:
+            pass
+        else:
+            if np.isfinite(K).all():
+                return np.full(Re.shape, K) if np.ndim(K) == 0 else K
+    return _total_K_rows(fittings, Re, D, roughness, fd)
+
+
+def _total_K_rows(fittings, Re: np.ndarray, D: float, roughness: float,
+                  fd: np.ndarray | None = None) -> np.ndarray:
+    """:func:`total_K_unchecked` row by row with :func:`_row_K` (every row's checks)."""
     total = np.zeros_like(Re)
     if fd is not None and np.any(Re < RE_FD_FLOOR):
         # the same rule as fitting_K: friction inside fitting methods held at the floor
@@ -805,6 +835,169 @@ def total_K_unchecked(fittings, Re: np.ndarray, D: float, roughness: float,
             raise InputError("fitting", type(f).__name__, "must be a Fitting row")
         total = total + _row_K(f, Re, D, roughness, fd_at)
     return total
+
+
+# ---------------------------------------------------------------- the cached plan of a row list
+#
+# A plan is ``(K_fixed, rows)``: the sum of count × K of the rows whose K does not depend on
+# Re, and, for each Re-dependent row, ``(count, evaluate, data)`` with its Re-independent
+# numbers worked out once. ``evaluate(data, Re, fd, eps)`` uses arithmetic only, so the same
+# code serves a float Re (the scalar paths of kit.core.line) and an array. The formulas and
+# their order of operations are those of the _k_* functions above; only the constants are
+# hoisted. The cache key is the rows themselves (frozen, compared by value), the bore and
+# the roughness: a pure function of immutable values.
+
+
+class _Fallback(Exception):
+    """Internal: the plan cannot answer this call; the row-by-row path decides."""
+
+
+def _fd_any(Re, eD):
+    """Darcy f at max(Re, RE_FD_FLOOR) for a float or an array, with the refusal limits of
+    :func:`kit.core.friction.darcy_friction` turned into :class:`_Fallback`."""
+    if not 0.0 <= eD <= _ED_REFUSE_HIGH:
+        raise _Fallback
+    if isinstance(Re, float):
+        Re = Re if Re > RE_FD_FLOOR else RE_FD_FLOOR
+        if not Re <= _RE_REFUSE_HIGH:
+            raise _Fallback
+        return _darcy_float(Re, eD)
+    Re = np.maximum(Re, RE_FD_FLOOR)
+    if not Re.max(initial=0.0) <= _RE_REFUSE_HIGH:
+        raise _Fallback
+    return _darcy_array(Re, eD)
+
+
+def _ev_2k3k(data, Re, fd, eps):
+    # Hooper (1981) K1/Re + K∞(1 + 1/Di[in]); Darby (2001) K1/Re + Ki(1 + Kd/NPS^0.3)
+    K1, tail = data
+    return K1 / Re + tail
+
+
+def _ev_bend_rennels(data, Re, fd, eps):
+    # Rennels & Hudson (2012), as _k_bend
+    a, rD, s, c, e = data
+    return fd * a * rD + (0.10 + 2.4 * fd) * s + 6.6 * fd * c / e
+
+
+def _ev_contraction_rennels(data, Re, fd, eps):
+    # Rennels & Hudson (2012) conical contraction, as _k_contraction
+    D, D2, K_conv, n1, d1 = data
+    K_small = K_conv + _fd_any(Re * D / D2, eps / D2) * n1 / d1
+    return ff.change_K_basis(K_small, D2, D)
+
+
+def _ev_enlargement_rennels(data, Re, fd, eps):
+    # Rennels & Hudson (2012) conical enlargement (θ <= 60°), as _k_enlargement
+    D, D2, K_exp, n1, s = data
+    K_small = K_exp + 0.125 * _fd_any(Re, eps / D2) * n1 / s
+    return ff.change_K_basis(K_small, D, D)
+
+
+_RE_PROBE = np.array([1.0e5])
+
+
+def _row_plan(f: Fitting, D: float, eps: float):
+    """``('fixed', count × K)`` or ``('re', count, evaluate, data)`` for one row; None when
+    the row's method is evaluated by fluids per Re (no plan: the row-by-row path)."""
+    p = f.params
+    kind = f.kind
+    method = p.get("method")
+    if kind == "hooper_2k":
+        K1, Kinf = ff.Hooper[p["name"]]
+        return ("re", f.count, _ev_2k3k, (K1, Kinf * (1.0 + _INCH / D)))
+    if kind == "darby_3k" or (kind in VALVE_DARBY_ROWS and method == "Darby 3-K"):
+        name = p["name"] if kind == "darby_3k" else _darby_valve_name(
+            {"style": p.get("style"), "_darby_rows": VALVE_DARBY_ROWS[kind]})
+        K1, Ki, Kd = ff.Darby[name]
+        nps = _darby_nps(D)
+        if nps <= 0.0:
+            return None
+        return ("re", f.count, _ev_2k3k, (K1, Ki * (1.0 + Kd * nps ** -0.3)))
+    if kind == "bend" and method == "Rennels":
+        a = p["angle"] * pi / 180.0
+        rD = p["R_D"]
+        s = float(np.sin(0.5 * a))
+        return ("re", f.count, _ev_bend_rennels,
+                (a, rD, s, sqrt(s) + s, rD ** (4.0 * a / pi)))
+    if kind == "bend" and method in ("Ito", "Miller"):
+        return None
+    if kind == "mitre" and method == "Blevins":
+        return None
+    if kind == "contraction" and p["style"] != "sudden" and method == "Rennels":
+        D2 = _reducer_D2(p, D, _row(f), larger=False)
+        beta = D2 / D
+        s = sin(0.5 * p["angle"] * pi / 180.0)
+        K_conv = _scalar("contraction_conical", Di1=D, Di2=D2, angle=p["angle"], fd=0.0,
+                         method="Rennels")
+        if not K_conv >= 0.0:
+            return None
+        return ("re", f.count, _ev_contraction_rennels, (D, D2, K_conv, 1.0 - beta ** 4, 8.0 * s))
+    if (kind == "enlargement" and p["style"] != "sudden" and method == "Rennels"
+            and p["angle"] <= 60.0):
+        D2 = _reducer_D2(p, D, _row(f), larger=True)
+        beta = D / D2
+        K_exp = _scalar("diffuser_conical", Di1=D, Di2=D2, angle=p["angle"], fd=0.0,
+                        method="Rennels")
+        if not K_exp >= 0.0:
+            return None
+        s = sin(0.5 * p["angle"] * pi / 180.0)
+        return ("re", f.count, _ev_enlargement_rennels, (D, D2, K_exp, 1.0 - beta ** 4, s))
+    kind_ = FITTING_KINDS[kind]
+    q = dict(p)
+    if kind in VALVE_DARBY_ROWS:
+        q["_darby_rows"] = VALVE_DARBY_ROWS[kind]
+    K = (kind_.compute(q, _RE_PROBE, D, eps, row=_row(f)) if kind in _NEEDS_ROW
+         else kind_.compute(q, _RE_PROBE, D, eps))
+    if np.ndim(K) != 0:
+        return None
+    K = float(K)
+    if (K < 0.0 and not kind_.allow_negative) or not math.isfinite(K):
+        return None  # the row-by-row path refuses it, naming the row
+    return ("fixed", f.count * K)
+
+
+@lru_cache(maxsize=4096)
+def _plan(fittings: tuple, D: float, eps: float):
+    K_fixed, rows = 0.0, []
+    for f in fittings:
+        if not isinstance(f, Fitting):
+            return None
+        r = _row_plan(f, D, eps)
+        if r is None:
+            return None
+        if r[0] == "fixed":
+            K_fixed = K_fixed + r[1]
+        else:
+            rows.append(r[1:])
+    return K_fixed, tuple(rows)
+
+
+def _plan_or_none(fittings, D, eps):
+    """The cached plan, or None (unhashable rows, a row without a plan, or a row that
+    refuses this bore: the row-by-row path then raises its own error, naming the row)."""
+    try:
+        return _plan(tuple(fittings), float(D), float(eps))
+    except (HeadlineError, TypeError, ValueError, KeyError, ZeroDivisionError):
+        return None
+
+
+def _plan_K(plan, Re, fd, D, eps):
+    """Total K of a plan at Re (float or array); ``fd`` the pipe's f at Re or None."""
+    K, rows = plan
+    if not rows:
+        return K
+    if fd is None:
+        fd = _fd_any(Re, eps / D)
+    elif isinstance(Re, float):
+        if Re < RE_FD_FLOOR:
+            fd = _fd_any(Re, eps / D)
+    elif Re.min(initial=np.inf) < RE_FD_FLOOR:
+        # every Re below the floor is held at the floor: one value, f(RE_FD_FLOOR)
+        fd = np.where(Re < RE_FD_FLOOR, _fd_any(RE_FD_FLOOR, eps / D), fd)
+    for count, evaluate, data in rows:
+        K = K + count * evaluate(data, Re, fd, eps)
+    return K
 
 
 def describe(fitting: Fitting) -> dict:

@@ -16,11 +16,13 @@ Example
 -------
 >>> import numpy as np
 >>> f = darcy_friction(np.array([1000.0, 1e5]), 1e-4)
->>> [round(x, 5) for x in f]
+>>> [round(float(x), 5) for x in f]
 [0.064, 0.01851]
 """
 
 from __future__ import annotations
+
+from math import isfinite, log
 
 import numpy as np
 
@@ -126,6 +128,79 @@ def colebrook_clamond(Re, rel_roughness):
     return _HALF_LN10_SQ / (F * F)
 
 
+def _clamond_float(Re: float, eD: float) -> float:
+    """:func:`colebrook_clamond` for one float Re > 0 and ε/D ≥ 0, with ``math`` (no numpy):
+    the same operations in the same order, for the scalar hot paths."""
+    X1 = eD * Re * _LN10_18574
+    X2 = log(Re) - _LN_LN10_502
+    F = X2 - 0.2
+    X1F = X1 + F
+    X1F1 = 1.0 + X1F
+    E = (log(X1F) - 0.2) / X1F1
+    F = F - (X1F1 + 0.5 * E) * E * X1F / (X1F1 + E * (1.0 + E / 3.0))
+    X1F = X1 + F
+    X1F1 = 1.0 + X1F
+    E = (log(X1F) + F - X2) / X1F1
+    F = F - (X1F1 + 0.5 * E) * E * X1F / (X1F1 + E * (1.0 + E / 3.0))
+    return _HALF_LN10_SQ / (F * F)
+
+
+_F_LAMINAR_EDGE = 64.0 / RE_LAMINAR
+#: Up to this many Re in a 1-D array, :func:`darcy_friction` works float by float.
+_SMALL_N = 8
+_RE_REFUSE_HIGH = FRICTION_LIMITS["Re"]["refuse"][1]
+_ED_REFUSE_HIGH = FRICTION_LIMITS["rel_roughness"]["refuse"][1]
+
+
+def _darcy_float(Re: float, eD: float) -> float:
+    """:func:`darcy_friction` for one float 0 < Re and ε/D the caller has checked against
+    :data:`FRICTION_LIMITS` (no checks, no numpy): the same policy and arithmetic."""
+    if Re < RE_LAMINAR:
+        return 64.0 / Re
+    if Re > RE_TURBULENT:
+        return _clamond_float(Re, eD)
+    w = (Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
+    return (1.0 - w) * _F_LAMINAR_EDGE + w * _clamond_float(RE_TURBULENT, eD)
+
+
+def _darcy_array(Re: np.ndarray, eD) -> np.ndarray:
+    """:func:`darcy_friction` for a float array Re ≥ 0 and ε/D the caller has checked
+    (no checks): the same policy and arithmetic, skipping the laminar and transition
+    branches when no Re needs them."""
+    out = colebrook_clamond(np.maximum(Re, RE_TURBULENT), eD)
+    if Re.size == 0:
+        return out
+    lo = Re.min()
+    if lo > RE_TURBULENT:
+        return out
+    if lo > 0.0:
+        lam = 64.0 / Re
+    else:
+        with np.errstate(divide="ignore"):
+            lam = 64.0 / Re
+    out = np.where(Re < RE_LAMINAR, lam, out)
+    zone = (Re >= RE_LAMINAR) & (Re <= RE_TURBULENT)
+    if zone.any():
+        eD = np.asarray(eD, dtype=float)
+        if eD.size <= _SMALL_N:   # Colebrook at Re 4000 for a few ε/D: float by float
+            f4000 = np.array([_clamond_float(RE_TURBULENT, e) for e in eD.ravel().tolist()]
+                             ).reshape(eD.shape)
+        else:
+            f4000 = colebrook_clamond(RE_TURBULENT, eD)
+        # w is used only inside the zone, where it lies in [0, 1] already (no clip needed)
+        w = (Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
+        out = np.where(zone, (1.0 - w) * _F_LAMINAR_EDGE + w * f4000, out)
+    return out
+
+
+def _scalar_ok(Re, eD) -> bool:
+    """True for a plain real Re > 0 and ε/D inside the refused limits (NaN fails)."""
+    return (isinstance(Re, (float, int)) and isinstance(eD, (float, int))
+            and not isinstance(Re, bool) and not isinstance(eD, bool)
+            and 0.0 < Re <= _RE_REFUSE_HIGH and 0.0 <= eD <= _ED_REFUSE_HIGH
+            and isfinite(Re))
+
+
 def check_friction_inputs(Re, rel_roughness):
     """Refuse Re or ε/D outside :data:`FRICTION_LIMITS` ``refuse`` (negative, non-finite,
     Re > 1e10, ε/D > 0.1) with :class:`~kit.errors.OutOfRangeError` naming the field.
@@ -203,24 +278,25 @@ def darcy_friction(Re, rel_roughness):
     Colebrook (1939); Clamond (2009); Moody, L. F. (1944). Friction factors for pipe flow.
     Trans. ASME 66(8), 671–684.
     """
+    if _scalar_ok(Re, rel_roughness):  # one plain number: no numpy on the way
+        return np.float64(_darcy_float(float(Re), float(rel_roughness)))
     Re = np.asarray(Re, dtype=float)
     eD = np.asarray(rel_roughness, dtype=float)
+    if Re.ndim == 1 and 0 < Re.size <= _SMALL_N and eD.ndim == 0:
+        # a few flows: float by float (cheaper than ~25 numpy calls); any doubt, numpy below
+        e = float(eD)
+        rs = Re.tolist()
+        if all(_scalar_ok(r, e) for r in rs):
+            return np.array([_darcy_float(r, e) for r in rs])
     check_friction_inputs(Re, eD)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        out = colebrook_clamond(np.maximum(Re, RE_TURBULENT), eD)
-        out = np.where(Re < RE_LAMINAR, 64.0 / Re, out)
-    zone = (Re >= RE_LAMINAR) & (Re <= RE_TURBULENT)
-    if zone.any():
-        f4000 = colebrook_clamond(RE_TURBULENT, eD)
-        w = np.clip((Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR), 0.0, 1.0)
-        out = np.where(zone, (1.0 - w) * (64.0 / RE_LAMINAR) + w * f4000, out)
+    out = _darcy_array(Re, eD)
     return out if out.ndim else out[()]
 
 
 def regime(Re):
     """Flow regime names for an array of Re: 'laminar', 'transition' or 'turbulent'.
 
-    >>> list(regime([100.0, 3000.0, 1e5]))
+    >>> [str(r) for r in regime([100.0, 3000.0, 1e5])]
     ['laminar', 'transition', 'turbulent']
     """
     Re = np.asarray(Re, dtype=float)

@@ -32,12 +32,16 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
 from functools import cached_property
+from math import isfinite
 
 import numpy as np
 
 from kit.core.findings import Finding, Severity
 from kit.core.friction import (
+    _RE_REFUSE_HIGH,
     FRICTION_LIMITS,
+    _darcy_array,
+    _darcy_float,
     darcy_friction,
     friction_range_findings,
     transition_findings,
@@ -54,12 +58,32 @@ from kit.core.constants import G  # noqa: E402  (one gravity constant)
 RE_FLOOR = 1e-9
 
 
+#: Up to this many flows, head loss is worked flow by flow in plain floats (no numpy per
+#: operation); above it, with numpy arrays. Both apply the same formulas in the same order.
+SMALL_N = 8
+
+
 def _fittings_K(fittings, Re, D, roughness, fd=None):
     if not fittings:
         return np.zeros_like(Re)
     from kit.core.fittings import total_K_unchecked
 
     return total_K_unchecked(fittings, np.asarray(Re, dtype=float), D, roughness, fd)
+
+
+def _segment_K_float(plan, Re: float, D: float, eps: float, fd: float) -> float | None:
+    """Sum of the rows' K at one float Re from their plan (:mod:`kit.core.fittings`);
+    None where the plan cannot answer (the caller then takes the numpy path, row by row,
+    which raises any row's error naming the row)."""
+    from kit.core.fittings import _Fallback, _plan_K
+
+    if plan is None:
+        return None
+    try:
+        K = _plan_K(plan, Re, fd, D, eps)
+    except _Fallback:
+        return None
+    return float(K) if isfinite(K) else None
 
 
 @dataclass(frozen=True)
@@ -124,7 +148,10 @@ class Segment:
         V = self.velocity(_flows(Q))
         Re = np.maximum(state.rho * V * self.pipe.Di / state.mu, RE_FLOOR)
         eD = self.pipe.roughness / self.pipe.Di
-        f = darcy_friction(Re, eD)
+        if V.ndim and 0 < V.size and Re.max() <= _RE_REFUSE_HIGH:
+            f = _darcy_array(Re, eD)   # ε/D checked by the constructor, Re just above
+        else:
+            f = darcy_friction(Re, eD)  # refuses (or answers) as ever
         vh = V * V / (2.0 * G)
         K = _fittings_K(self.fittings, Re, self.pipe.Di, self.pipe.roughness, f)
         return f * (self.length / self.pipe.Di) * vh, K * vh, Re
@@ -136,6 +163,8 @@ class Segment:
 
 
 def _flows(Q) -> np.ndarray:
+    if isinstance(Q, float) and Q >= 0.0 and Q != float("inf"):   # one plain flow: fast
+        return np.array(Q)
     Q = np.asarray(Q, dtype=float)
     if Q.size and (not np.all(np.isfinite(Q)) or Q.min() < 0):
         bad = Q[~np.isfinite(Q) | (Q < 0)].flat[0]
@@ -236,23 +265,106 @@ class Line:
     def exit_area(self) -> float:
         return float(self.segments[-1].pipe.area)
 
+    @cached_property
+    def _floats(self):
+        """Per segment, as floats: (D, A, eps, L, ε/D, L/D, fittings, plan of the fittings'
+        K or None) — pipes and fittings are immutable."""
+        from kit.core.fittings import _plan_or_none
+
+        out = []
+        for s in self.segments:
+            D, A, eps = float(s.pipe.Di), float(s.pipe.area), float(s.pipe.roughness)
+            L = float(s.length)
+            plan = _plan_or_none(s.fittings, D, eps) if s.fittings else None
+            out.append((D, A, eps, L, eps / D, L / D, s.fittings, plan))
+        return tuple(out)
+
+    def _small(self, Q: np.ndarray, state):
+        """Friction and fitting heads [m] of each segment at each flow, in plain floats:
+        the arithmetic of :meth:`head_loss`, term by term, flow by flow. ``[(hf, hk), ...]``
+        per flow (``hk[i]`` None for a segment without fittings); None where any Re is
+        refused or not finite, or a fitting row needs its own checks — the numpy path then
+        answers, or raises the error it always raised."""
+        from kit.core.fittings import RE_FD_FLOOR
+
+        try:
+            rho, mu = float(state.rho), float(state.mu)
+        except (TypeError, ValueError):   # not one number each: the numpy path decides
+            return None
+        geo = self._floats
+        flows = []
+        for q in Q.ravel().tolist():                      # all Re first, as the numpy path
+            per = []
+            for D, A, _eps, _L, eD, _LD, _fits, _plan in geo:
+                V = q / A
+                Re = rho * V * D / mu
+                if not Re > RE_FLOOR:
+                    Re = RE_FLOOR if Re <= RE_FLOOR else Re   # NaN stays NaN
+                if not Re <= _RE_REFUSE_HIGH:
+                    return None
+                per.append((V, Re, _darcy_float(Re, eD)))
+            flows.append(per)
+        out = []
+        for per in flows:
+            hf, hk = [], []
+            for (D, _A, eps, _L, eD, LD, fits, plan), (V, Re, f) in zip(geo, per, strict=True):
+                vh = V * V / (2.0 * G)
+                hf.append(f * LD * vh)
+                if fits:
+                    fd = f if Re >= RE_FD_FLOOR else _darcy_float(RE_FD_FLOOR, eD)
+                    K = _segment_K_float(plan, Re, D, eps, fd)
+                    if K is None:
+                        return None
+                    hk.append(K * vh)
+                else:
+                    hk.append(None)
+            out.append((hf, hk))
+        return out
+
     def segment_losses(self, Q, state) -> np.ndarray:
         """Head loss of each segment [m], shape ``(n_segments, n_Q)``."""
         Q = np.atleast_1d(_flows(Q))
+        if Q.ndim == 1 and 0 < Q.size <= SMALL_N:
+            rows = self._small(Q, state)
+            if rows is not None:
+                return np.array([[hf[i] + (hk[i] or 0.0) for hf, hk in rows]
+                                 for i in range(len(self.segments))])
         return np.stack([s.head_loss(Q, state) for s in self.segments])
 
     def head_loss(self, Q, state) -> np.ndarray:
         """Total head loss [m] over flows ``Q`` [m³/s] (same shape as ``Q``).
 
         Method: Darcy–Weisbach with :func:`~kit.core.friction.darcy_friction`, plus fittings.
+        Up to :data:`SMALL_N` flows are worked one by one in plain floats, more with numpy
+        arrays (the same formulas in the same order).
         """
         Q = _flows(Q)
+        if 0 < Q.size <= SMALL_N:
+            rows = self._small(Q, state)
+            if rows is not None:
+                out = []
+                for hf, hk in rows:
+                    total = 0.0
+                    for h in hf:
+                        total = total + h
+                    for h in hk:
+                        if h is not None:
+                            total = total + h
+                    out.append(total)
+                return np.array(out).reshape(Q.shape)
+        return self._head_loss_arrays(Q, state)
+
+    def _head_loss_arrays(self, Q: np.ndarray, state) -> np.ndarray:
         q = np.atleast_1d(Q).ravel()
         segs = self.segments
         D, A, eps, L = self._arrays
         V = q[None, :] / A[:, None]
         Re = np.maximum(state.rho * V * D[:, None] / state.mu, RE_FLOOR)
-        f = darcy_friction(Re, (eps / D)[:, None])
+        eD = (eps / D)[:, None]
+        if Re.size and Re.max() <= _RE_REFUSE_HIGH:
+            f = _darcy_array(Re, eD)   # ε/D checked by each segment's constructor
+        else:
+            f = darcy_friction(Re, eD)  # refuses (or answers) as ever
         vh = V * V / (2.0 * G)
         total = (f * (L / D)[:, None] * vh).sum(axis=0)
         for i, s in enumerate(segs):
@@ -286,9 +398,9 @@ class Line:
         p = float(p_start)
         x = 0.0
         out = [self._station(self.start_station, x, z, p, V, p_baro, rho)]
-        for s in self.segments:
+        losses = self.segment_losses(np.array([Q]), state)[:, 0].tolist()
+        for s, hl in zip(self.segments, losses, strict=True):
             V2 = Q / s.pipe.area
-            hl = float(s.head_loss(np.array([Q]), state)[0])
             z2 = z + s.rise
             p = p + rho * g * (z - z2) + 0.5 * rho * (V * V - V2 * V2) - rho * g * hl
             x += s.length

@@ -34,12 +34,13 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property, lru_cache
 
 import numpy as np
 
 from kit.core.criteria import DutyClass, erosional_findings
 from kit.core.findings import Finding, Severity, worst
-from kit.core.fittings import fitting_re_findings
+from kit.core.fittings import fitting_re_findings, fitting_re_range
 from kit.core.friction import darcy_friction, friction_range_findings, transition_findings
 from kit.core.line import G, Line, Profile, Segment, Station, vapour_findings
 from kit.errors import HeadlineError, InputError, check_range
@@ -159,9 +160,10 @@ class Candidate:
     findings: tuple
     error: str = ""
 
-    @property
+    @cached_property
     def verdict(self) -> str:
-        """'pass', 'check' or 'fail' (the worst finding); 'fail' for an error."""
+        """'pass', 'check' or 'fail' (the worst finding); 'fail' for an error (worked once:
+        the candidate is frozen)."""
         if self.error:
             return "fail"
         return worst(self.findings).value
@@ -299,24 +301,39 @@ def route_profiles(line: Line, state, Q, p_end: float, p_baro: float = 101325.0)
     """
     Q = np.atleast_1d(np.asarray(Q, dtype=float))
     seg = line.segment_losses(Q, state)                   # (n_seg, n_Q) [m]
-    rise = np.array([s.rise for s in line.segments])
+    segs = line.segments
+    rise = [float(s.rise) for s in segs]
     rho = state.rho
-    # pressure at each station from the end backwards: p_k = p_end + rho g sum_{j>=k}(rise+hl)
-    per = (rise[:, None] + seg) * rho * G                 # (n_seg, n_Q) [Pa]
-    after = np.cumsum(per[::-1], axis=0)[::-1]            # from segment k to the end
-    p = np.vstack([after, np.zeros((1, Q.size))]) + p_end  # (n_seg + 1, n_Q)
-    names = [line.start_station] + [s.station for s in line.segments]
-    x = np.concatenate([[0.0], np.cumsum([s.length for s in line.segments])])
-    z = line.start_elevation + np.concatenate([[0.0], np.cumsum(rise)])
-    area = line.segments[0].pipe.area
+    rg = rho * G
+    # pressure at each station from the end backwards: p_k = p_end + rho g sum_{j>=k}(rise+hl),
+    # summed from the end in the order of a cumulative sum (plain floats: a handful of terms)
+    n_seg, n_Q = seg.shape
+    seg_l = seg.tolist()
+    after = [None] * n_seg                                # from segment k to the end [Pa]
+    acc = None
+    for k in range(n_seg - 1, -1, -1):
+        per = [(rise[k] + h) * rho * G for h in seg_l[k]]
+        acc = per if acc is None else [a + b for a, b in zip(acc, per, strict=True)]
+        after[k] = acc
+    p = [[a + p_end for a in row] for row in after] + [[0.0 + p_end] * n_Q]
+    names = [line.start_station] + [s.station for s in segs]
+    x, z = [0.0], [0.0]
+    for s, r in zip(segs, rise, strict=True):
+        x.append(x[-1] + s.length)
+        z.append(z[-1] + r)
+    z = [line.start_elevation + zk for zk in z]
+    x = [float(xk) for xk in x]
+    area = segs[0].pipe.area
     out = []
     for j, q in enumerate(Q):
         V = q / area
+        v = float(V)
+        ev = v * v / (2 * G)
         st = []
         for k, name in enumerate(names):
-            hgl = z[k] + (p[k, j] - p_baro) / (rho * G)
-            st.append(Station(name, float(x[k]), float(z[k]), float(p[k, j]),
-                              float(p[k, j] - p_baro), V, float(hgl), float(hgl + V * V / (2 * G))))
+            pk = p[k][j]
+            hgl = z[k] + (pk - p_baro) / rg
+            st.append(Station(name, x[k], float(z[k]), pk, pk - p_baro, V, hgl, hgl + ev))
         out.append(Profile(line.name, float(q), tuple(st), p_baro, rho))
     return out, seg.sum(axis=0)
 
@@ -425,8 +442,21 @@ def size_line(route: Route, state, Q_design: float, pipes, duty: DutyClass,
                         tuple(profiles))
 
 
+@lru_cache(maxsize=256)
+def _route_line(route: Route, pipe) -> Line:
+    """``route.line(pipe)``, cached on the values of the route and the pipe (both frozen)."""
+    return route.line(pipe)
+
+
+def _line_of(route: Route, pipe) -> Line:
+    try:
+        return _route_line(route, pipe)
+    except TypeError:   # an unhashable pipe-like object: build the line each time
+        return route.line(pipe)
+
+
 def _candidate(route, state, pipe, duty, flows, labels, p_end, p_baro, margin, C):
-    line = route.line(pipe)
+    line = _line_of(route, pipe)
     Q_min, Q, Q_max = flows
     profs, hl = route_profiles(line, state, flows, p_end, p_baro)
     V = flows / pipe.area
@@ -441,10 +471,14 @@ def _candidate(route, state, pipe, duty, flows, labels, p_end, p_baro, margin, C
     found += erosional_findings(subject + (f", {labels[2]}" if Q_max > Q else ""),
                                 float(V[2]), state.rho, C,
                                 applies=getattr(duty, "erosional_applies", False))
-    found += transition_findings(subject, Re[flows > 0])
-    found += friction_range_findings(subject, Re[flows > 0], eD)
-    for fit in route.fittings:
-        found += fitting_re_findings(fit, Re[flows > 0], subject=subject)
+    live = Re[flows > 0]
+    found += transition_findings(subject, live)
+    found += friction_range_findings(subject, live, eD)
+    if live.size:
+        re_min = float(live.min())
+        for fit in route.fittings:
+            if re_min < fitting_re_range(fit)[0]:   # else fitting_re_findings finds nothing
+                found += fitting_re_findings(fit, live, subject=subject)
     j_low = int(np.argmin([p.lowest.p for p in profs]))
     low = profs[j_low].lowest
     where = f"{subject}, station '{low.name}'"
