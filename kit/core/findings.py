@@ -31,7 +31,12 @@ class Severity(StrEnum):
 
     @property
     def rank(self) -> int:
-        return {"pass": 0, "check": 1, "fail": 2}[self.value]
+        """0 pass, 1 check, 2 fail (the order :func:`worst` takes)."""
+        return _RANK[self]
+
+
+#: Severity -> rank (a str-keyed dict: a StrEnum member hashes and compares as its value).
+_RANK = {"pass": 0, "check": 1, "fail": 2}
 
 
 @dataclass(frozen=True)
@@ -84,10 +89,11 @@ class Finding:
 
 def worst(findings) -> Severity:
     """The most severe of a list of findings (PASS for an empty list)."""
-    out = Severity.PASS
+    out, top = Severity.PASS, 0
     for f in findings:
-        if f.severity.rank > out.rank:
-            out = f.severity
+        r = _RANK[f.severity]
+        if r > top:
+            out, top = f.severity, r
     return out
 
 
