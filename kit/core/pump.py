@@ -31,6 +31,7 @@ Example
 
 from __future__ import annotations
 
+from bisect import bisect_right
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -79,6 +80,55 @@ AFFINITY_SOURCE = ("Karassik, I. J., Messina, J. P., Cooper, P., Heald, C. C. (2
 _CURVE_UNITS = {"head": "m", "efficiency": "-", "npshr": "m", "power": "W"}
 
 
+_SCALARS = (float, int, np.floating, np.integer)
+
+
+def _horner(c: tuple, off: float, scl: float, Q):
+    """Σ c_k x^k at x = off + scl·Q by Horner's rule, ``c`` highest degree first.
+
+    The operations and their order are those of :func:`numpy.polynomial.polynomial.polyval`
+    (``c0 = c[-1] + x*0``, then ``c0 = c[-i] + c0*x``), so results are bit-for-bit the same;
+    a scalar ``Q`` stays in Python floats (about 20× faster than numpy on one value) and
+    comes back as ``numpy.float64``.
+    """
+    if isinstance(Q, _SCALARS) and not isinstance(Q, (bool, np.bool_)):
+        x = off + scl * float(Q)
+        y = c[0] + x * 0.0
+        for ci in c[1:]:
+            y = ci + y * x
+        return np.float64(y)
+    x = off + scl * np.asarray(Q, dtype=float)
+    y = c[0] + x * 0
+    for ci in c[1:]:
+        y = ci + y * x
+    return y
+
+
+def _interp_float(x: float, xp: list, fp: list) -> float:
+    """:func:`numpy.interp` at one point, in Python floats with numpy's arithmetic.
+
+    ``xp`` non-decreasing; the segment is the one with xp[j] ≤ x < xp[j+1] (so the last of
+    equal abscissae), a point on a node gives its ordinate, and outside the table the end
+    ordinates — as numpy does, so the result is the same to the last bit.
+    """
+    if x != x:
+        return x
+    if x < xp[0]:
+        return fp[0]
+    if x >= xp[-1]:
+        return fp[-1]
+    j = bisect_right(xp, x) - 1
+    if xp[j] == x:
+        return fp[j]
+    slope = (fp[j + 1] - fp[j]) / (xp[j + 1] - xp[j])
+    y = slope * (x - xp[j]) + fp[j]
+    if y != y:
+        y = slope * (x - xp[j + 1]) + fp[j + 1]
+        if y != y and fp[j] == fp[j + 1]:
+            y = fp[j]
+    return y
+
+
 @dataclass(frozen=True)
 class CurveFit:
     """One fitted curve: its polynomial, degree and residuals at the datasheet points."""
@@ -97,15 +147,48 @@ class CurveFit:
         c = self.polynomial.coef
         return float(off), float(scl), c, npoly.polyder(c) * scl
 
+    @cached_property
+    def _horner_coefs(self) -> tuple[float, float, tuple, tuple]:
+        """The map and both coefficient lists as plain floats, highest degree first."""
+        off, scl, c, d = self._mapped
+        return (off, scl, tuple(float(x) for x in c[::-1]), tuple(float(x) for x in d[::-1]))
+
     def value(self, Q):
-        """The fitted curve at ``Q`` [m³/s] (Horner on the fit's scaled variable)."""
-        off, scl, c, _ = self._mapped
-        return npoly.polyval(off + scl * np.asarray(Q, dtype=float), c)
+        """The fitted curve at ``Q`` [m³/s] (Horner on the fit's scaled variable).
+
+        Horner's rule in the same order of operations as :func:`numpy.polynomial.polynomial.
+        polyval` (so the same numbers to the last bit); a scalar flow is evaluated in plain
+        Python floats, an array with numpy.
+
+        >>> f = _fit("head", np.array([0.0, 0.01, 0.02]), np.array([30.0, 28.0, 22.0]), 2)
+        >>> round(float(f.value(0.015)), 6), f.value(np.array([0.0, 0.02])).round(6).tolist()
+        (25.5, [30.0, 22.0])
+        """
+        off, scl, c, _ = self._horner_coefs
+        return _horner(c, off, scl, Q)
 
     def slope(self, Q):
-        """d(curve)/dQ at ``Q`` [m³/s]."""
-        off, scl, _, d = self._mapped
-        return npoly.polyval(off + scl * np.asarray(Q, dtype=float), d)
+        """d(curve)/dQ at ``Q`` [m³/s] (Horner, as :meth:`value`)."""
+        off, scl, _, d = self._horner_coefs
+        return _horner(d, off, scl, Q)
+
+    def value_float(self, q: float) -> float:
+        """:meth:`value` at one flow ``q`` [m³/s] as a Python float (the same bits)."""
+        off, scl, c, _ = self._horner_coefs
+        x = off + scl * q
+        y = c[0] + x * 0.0
+        for ci in c[1:]:
+            y = ci + y * x
+        return y
+
+    def slope_float(self, q: float) -> float:
+        """:meth:`slope` at one flow ``q`` [m³/s] as a Python float (the same bits)."""
+        off, scl, _, d = self._horner_coefs
+        x = off + scl * q
+        y = d[0] + x * 0.0
+        for di in d[1:]:
+            y = di + y * x
+        return y
 
     def as_dict(self) -> dict:
         return {"curve": self.curve, "degree": self.degree, "max_residual": self.max_residual,
@@ -258,7 +341,8 @@ class PumpCurve:
                          ("power", self.power_points)):
             if pts is not None:
                 self.fits[key] = _fit(key, Q, pts, self.degrees[key])
-        self._table = None  # lazily built inverse table (head -> flow)
+        self._table = None  # lazily built inverse table (head -> flow), see _inverse
+        self._table_lists = None
 
     # ------------------------------------------------------------------ construction helpers
     def _degrees(self, degrees: dict | None) -> dict[str, int]:
@@ -361,28 +445,87 @@ class PumpCurve:
         q = float(Qf[j])
         return q, float(self.head(q)), float(self.efficiency(q))
 
+    def _inverse(self) -> tuple:
+        """The head → flow table (built once): flows 0 to 1.5 × the last datasheet flow and
+        the running minimum of the fitted head there, as arrays and as float lists."""
+        if self._table is None:
+            Qs = np.linspace(0.0, 1.5 * self.q_end, 1025)
+            Hs = np.minimum.accumulate(self.head(Qs))
+            self._table = (Qs, Hs)
+            self._table_lists = ((-Hs).tolist(), Qs.tolist(), float(Hs[0]), float(Qs[-1]))
+        return self._table
+
     def flow_at_head(self, H):
         """Flow at which the fitted curve gives head ``H`` [m] -> [m³/s].
 
         Zero where H ≥ shut-off head (a check valve holds the pump closed). Heads below the
         curve's lowest value within 1.5 × the last datasheet flow give that limit flow.
+
+        Method: linear interpolation on a 1025-point table of the curve's running minimum
+        (a monotone falling envelope), then Newton's method on the fitted polynomial (at most
+        six steps, none where the curve does not fall) to machine precision. One head is
+        solved in plain Python floats, with the same operations as the array path.
+
+        >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
+        >>> round(float(p.flow_at_head(25.5)), 9), p.flow_at_head([31.0, 28.0]).round(9).tolist()
+        (0.015, [0.0, 0.01])
         """
-        if self._table is None:
-            Qs = np.linspace(0.0, 1.5 * self.q_end, 1025)
-            Hs = np.minimum.accumulate(self.head(Qs))
-            self._table = (Qs, Hs)
-        Qs, Hs = self._table
+        if isinstance(H, _SCALARS) and not isinstance(H, (bool, np.bool_)):
+            return np.array(self.flow_at_head_float(float(H)))
+        Qs, Hs = self._inverse()
         H = np.asarray(H, dtype=float)
+        if H.size == 1:
+            return np.array(self.flow_at_head_float(float(H.reshape(-1)[0]))).reshape(H.shape)
         q = np.interp(-H, -Hs, Qs)  # Hs non-increasing -> -Hs non-decreasing
-        poly, dpoly = self.fits["head"].value, self.fits["head"].slope
+        off, scl, c, d = self.fits["head"]._horner_coefs
+        q_hi = float(Qs[-1])
+        tol = 1e-15 * q_hi
+        where, maximum, minimum = np.where, np.maximum, np.minimum
         for _ in range(6):  # Newton polish from the table value; stops at machine precision
-            slope = dpoly(q)
+            x = off + scl * q  # Horner as CurveFit.value/slope (the same bits), x shared
+            slope = d[0] + x * 0
+            for di in d[1:]:
+                slope = di + slope * x
+            y = c[0] + x * 0
+            for ci in c[1:]:
+                y = ci + y * x
             ok = slope < 0
-            step = np.where(ok, (poly(q) - H) / np.where(ok, slope, -1.0), 0.0)
-            q = np.clip(q - step, 0.0, Qs[-1])
-            if np.all(np.abs(step) <= 1e-15 * Qs[-1]):
+            step = where(ok, (y - H) / where(ok, slope, -1.0), 0.0)
+            q = minimum(maximum(q - step, 0.0), q_hi)  # np.clip, nan kept alike
+            if (np.abs(step) <= tol).all():
                 break
-        return np.where(H >= Hs[0], 0.0, q)
+        return where(H >= Hs[0], 0.0, q)
+
+    def flow_at_head_float(self, H: float) -> float:
+        """:meth:`flow_at_head` at one head ``H`` [m] as a Python float [m³/s].
+
+        The same table, interpolation and Newton steps as the array path, in plain floats.
+        """
+        self._inverse()
+        xp, fp, h0, q_hi = self._table_lists
+        q = _interp_float(-H, xp, fp)
+        off, scl, c, d = self.fits["head"]._horner_coefs
+        tol = 1e-15 * q_hi
+        for _ in range(6):
+            x = off + scl * q
+            s = d[0] + x * 0.0
+            for di in d[1:]:
+                s = di + s * x
+            if s < 0:
+                y = c[0] + x * 0.0
+                for ci in c[1:]:
+                    y = ci + y * x
+                step = (y - H) / s
+            else:
+                step = 0.0
+            q = q - step
+            if q < 0.0:
+                q = 0.0
+            elif q > q_hi:
+                q = q_hi
+            if abs(step) <= tol:
+                break
+        return 0.0 if H >= h0 else q
 
     def range_findings(self, Q, subject: str | None = None) -> list[Finding]:
         """CHECK findings where ``Q`` lies outside the datasheet flows [m³/s]."""
@@ -487,6 +630,33 @@ class PumpCurve:
                 f"diameter={self.diameter:g}, points={self.flow.size})")
 
 
+def _distinct(pumps) -> tuple[list, list]:
+    """The distinct curve objects of a set, and each member's index into them."""
+    distinct: list = []
+    where: dict = {}
+    idx = []
+    for p in pumps:
+        key = id(p)
+        if key not in where:
+            where[key] = len(distinct)
+            distinct.append(p)
+        idx.append(where[key])
+    return distinct, idx
+
+
+def _per_member(pumps, fn) -> list:
+    """``[fn(p) for p in pumps]``, with ``fn`` called once per distinct curve object (a set
+    of identical units lists one curve several times; the answer is the same)."""
+    done: dict = {}
+    out = []
+    for p in pumps:
+        key = id(p)
+        if key not in done:
+            done[key] = fn(p)
+        out.append(done[key])
+    return out
+
+
 class PumpSet:
     """Pumps in parallel (flows add at equal head) or series (heads add at equal flow).
 
@@ -535,13 +705,30 @@ class PumpSet:
             Hs = np.linspace(h_top, h_low, 1025)
             Qt = self._members_at_head(Hs).sum(axis=0)
             self._table = (Hs, Qt)
+            self._table_lists = (Qt.tolist(), Hs.tolist(), float(Hs[-1]), float(Hs[0]))
+            #: flow residual of a settled Newton solve: 1e-9 of the table's largest flow
+            self._q_tol = 1e-9 * float(Qt[-1])
             h_end = max(float(p.head(p.q_end)) for p in pumps)
             self._q_end = float(self._members_at_head(np.array([h_end])).sum())
         else:
             self._q_end = min(p.q_end for p in pumps)
 
     def _members_at_head(self, H) -> np.ndarray:
-        return np.array([p.flow_at_head(H) for p in self.pumps])
+        """Each member's flow at heads ``H`` [m] -> (members, *H.shape) [m³/s]; a member
+        listed more than once (the same curve object) is solved once in this call."""
+        H = np.asarray(H, dtype=float)
+        if H.size == 1:  # one head: each member in plain floats (the same bits as arrays)
+            h = float(H.reshape(-1)[0])
+            return np.array(_per_member(self.pumps, lambda p: p.flow_at_head_float(h))).reshape(
+                (len(self.pumps),) + H.shape)
+        return np.array(_per_member(self.pumps, lambda p: p.flow_at_head(H)))
+
+    def _index_of(self, p) -> int:
+        """Position of the first member that is the curve object ``p``."""
+        for i, m in enumerate(self.pumps):
+            if m is p:
+                return i
+        raise ValueError(p)
 
     @property
     def q_end(self) -> float:
@@ -555,26 +742,129 @@ class PumpSet:
         return float(sum(p.shutoff_head for p in self.pumps))
 
     def head(self, Q):
-        """Head of the set at set flows ``Q`` [m³/s] -> [m]."""
+        """Head of the set at set flows ``Q`` [m³/s] -> [m].
+
+        Series: the members' heads summed at the set flow. Parallel: the head H with
+        Σ Q_i(H) = Q (each member's :meth:`PumpCurve.flow_at_head`, zero above its shut-off)
+        by Newton's method (dQ_i/dH = 1 / H_i'(Q_i)) from linear interpolation on a
+        1025-point table of the combined curve, H held between the table's ends; at most
+        eight steps, to a step of 1e-14 × the highest shut-off head. Where Newton has not
+        settled, or settled with the flows not adding up to Q (to 1e-9 of the table's
+        largest flow) — a member switching on at its shut-off head, where its flow rises
+        as a square root — Brent's method on the bracket gives H instead. One flow is
+        solved in plain Python floats with the same operations as the array path.
+
+        >>> p = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.25)
+        >>> s = parallel([p, p.trimmed(0.23)])
+        >>> round(float(s.head(0.02)), 6), s.head([0.0, 0.02]).round(6).tolist()
+        (25.032448, [30.0, 25.032448])
+        """
         Q = np.asarray(Q, dtype=float)
         if self.arrangement == "series":
             return sum(p.head(Q) for p in self.pumps)
+        if Q.size == 1:
+            return np.array(self.head_float(float(Q.reshape(-1)[0]))).reshape(Q.shape)
         Hs, Qt = self._table
         H = np.interp(Q, Qt, Hs)  # Qt increases as Hs decreases
+        h_lo, h_hi = Hs[-1], Hs[0]
+        tol = 1e-14 * h_hi
+        where = np.where
         for _ in range(8):  # Newton on sum(Q_i(H)) - Q, dQ_i/dH = 1/H_i'(Q_i)
             qi = self._members_at_head(H)
             F = qi.sum(axis=0) - Q
             dF = np.zeros_like(np.atleast_1d(H), dtype=float)
-            for p, q in zip(self.pumps, qi, strict=True):
-                s = p.head_slope(q)
+            slopes = _per_member(self.pumps, lambda p, _q=qi: p.head_slope(
+                _q[self._index_of(p)]))
+            for q, s in zip(qi, slopes, strict=True):
                 on = (q > 0) & (s < 0)
-                dF = dF + np.where(on, 1.0 / np.where(on, s, -1.0), 0.0)
+                dF = dF + where(on, 1.0 / where(on, s, -1.0), 0.0)
             ok = dF < 0
-            step = np.where(ok, F / np.where(ok, dF, -1.0), 0.0)
-            H = np.clip(H - step, Hs[-1], Hs[0])
-            if np.all(np.abs(step) <= 1e-14 * Hs[0]):
+            step = where(ok, F / where(ok, dF, -1.0), 0.0)
+            H = np.minimum(np.maximum(H - step, h_lo), h_hi)  # np.clip, nan kept alike
+            if (np.abs(step) <= tol).all():
                 break
+        # where Newton has not settled, or settled off the curve (every member shut with
+        # no slope to follow), Brent's method on the bracket gives the head
+        bad = ~(np.abs(step) <= tol) | (np.abs(F) > self._q_tol)
+        if bad.any():
+            H = np.array(H, dtype=float, copy=True)
+            Qf = np.broadcast_to(Q, H.shape)
+            for i in np.flatnonzero(bad.reshape(-1)):
+                H.flat[i] = self._head_bracketed(float(Qf.flat[i]))
         return H.reshape(Q.shape) if Q.shape else H.reshape(())
+
+    def head_float(self, Q: float) -> float:
+        """:meth:`head` at one set flow ``Q`` [m³/s] as a Python float [m]."""
+        if self.arrangement == "series":
+            return float(sum(p.head(float(Q)) for p in self.pumps))
+        Qt, Hs, h_lo, h_hi = self._table_lists
+        H = _interp_float(Q, Qt, Hs)
+        pumps = self.pumps
+        distinct, idx = _distinct(pumps)
+        fits = [p.fits["head"] for p in distinct]
+        tol = 1e-14 * h_hi
+        many = len(pumps) >= 8
+        for _ in range(8):
+            qd = [p.flow_at_head_float(H) for p in distinct]
+            qs = [qd[j] for j in idx]
+            if many:  # numpy's pairwise sum, as the array path takes it
+                tot = float(np.add.reduce(np.array(qs)))
+            else:
+                tot = 0.0
+                for q in qs:
+                    tot += q
+            F = tot - Q
+            sd = [f.slope_float(q) if q > 0 else 0.0 for f, q in zip(fits, qd, strict=True)]
+            dF = 0.0
+            for j in idx:
+                if qd[j] > 0 and sd[j] < 0:
+                    dF = dF + 1.0 / sd[j]
+            step = F / dF if dF < 0 else 0.0
+            H = H - step
+            if H < h_lo:
+                H = h_lo
+            elif H > h_hi:
+                H = h_hi
+            if abs(step) <= tol:
+                if abs(F) <= self._q_tol:
+                    return H
+                break
+        return self._head_bracketed(Q)
+
+    def _head_bracketed(self, Q: float) -> float:
+        """The parallel set's head at set flow ``Q`` by Brent's method (Brent 1973, via
+        :func:`scipy.optimize.brentq`) on Σ Q_i(H) − Q over the table's heads: the safeguard
+        where Newton's method has not settled in eight steps (a member switching on at its
+        shut-off head, where its flow rises as a square root and Newton oscillates).
+        Held at the table's ends as the Newton path is."""
+        from scipy.optimize import brentq
+
+        _, _, h_lo, h_hi = self._table_lists
+        pumps = self.pumps
+        many = len(pumps) >= 8
+
+        def excess(H):
+            qs = _per_member(pumps, lambda p: p.flow_at_head_float(H))
+            if many:
+                return float(np.add.reduce(np.array(qs))) - Q
+            tot = 0.0
+            for q in qs:
+                tot += q
+            return tot - Q
+
+        if not excess(h_lo) > 0.0:  # the set cannot pass Q above the table's lowest head
+            return h_lo
+        if excess(h_hi) >= 0.0:
+            return h_hi
+        a, b = h_lo, h_hi
+        Qt, Hs, _, _ = self._table_lists  # the table's interval holding Q, when it brackets
+        j = bisect_right(Qt, Q)
+        if 0 < j < len(Qt):
+            lo, hi = Hs[j], Hs[j - 1]
+            if excess(lo) > 0.0 and excess(hi) < 0.0:
+                a, b = lo, hi
+        return float(brentq(excess, a, b, xtol=1e-14 * abs(h_hi),
+                            rtol=4 * np.finfo(float).eps, maxiter=200))
 
     def member_flows(self, Q) -> tuple[np.ndarray, np.ndarray]:
         """Members' flows [m³/s] and heads [m] at set flows ``Q``, each shaped (pumps, flows)."""
@@ -608,16 +898,24 @@ class PumpSet:
         """Sum of members' shaft power at set flows ``Q`` [m³/s] -> [W] (NaN while a member
         without a power curve is held shut: its dead-headed power is unknown)."""
         qs, _ = self.member_flows(Q)
-        total = sum(np.where(q > 0, p.power(q, rho), self._idle_power(p, rho))
-                    for p, q in zip(self.pumps, qs, strict=True))
-        return total.reshape(np.shape(Q))
+        return self._power_at(qs, rho).reshape(np.shape(Q))
+
+    def _power_at(self, qs, rho: float):
+        """Σ members' power at member flows ``qs`` (rows in member order) [W]."""
+        terms = _per_member(self.pumps, lambda p: np.where(
+            qs[self._index_of(p)] > 0, p.power(qs[self._index_of(p)], rho),
+            self._idle_power(p, rho)))
+        return sum(terms)
 
     def efficiency(self, Q):
-        """Set efficiency ρ g Q H / Σ P_i [-]."""
+        """Set efficiency ρ g Q H / Σ P_i [-] (one solve of the members for both)."""
         Q = np.asarray(Q, dtype=float)
         rho = self.test_density
+        qs, hs = self.member_flows(Q)
+        H = hs[0] if self.arrangement == "parallel" else sum(list(hs))
+        P = self._power_at(qs, rho).reshape(np.shape(Q))
         with np.errstate(divide="ignore", invalid="ignore"):
-            return rho * G * Q * self.head(Q) / self.power(Q, rho)
+            return rho * G * Q * H.reshape(Q.shape) / P
 
     def npshr(self, Q):
         """NPSHr of the set [m]: parallel, the largest of the members at their own flows;

@@ -53,12 +53,13 @@ import numpy as np
 
 from kit.core.findings import CAUTIONS, Finding, Severity
 from kit.core.pump import AFFINITY_SOURCE, PumpCurve
-from kit.errors import InputError, OutOfRangeError, check_choice, check_range
+from kit.errors import HeadlineError, InputError, OutOfRangeError, check_choice, check_range
 
 __all__ = [
     "STRATEGIES", "STAGING_BASES", "SPEED_LIMITS", "SpeedRange", "ControlCurve",
     "constant_pressure", "remote_dp", "StagingRule", "StagingResult", "staging_sweep",
     "load_profile", "EnergyRow", "EnergyComparison", "profile_energy", "compare_strategies",
+    "compare_strategies_band",
     "vfd_efficiency", "control_findings", "required_heads",
 ]
 
@@ -276,9 +277,19 @@ def _bisect(fun, lo, hi, shape, n=52):
     return 0.5 * (a + b)
 
 
+#: Up to this many elements a bisection runs element by element in plain Python floats
+#: (the same operations, so the same bits): numpy's per-call cost dominates small arrays.
+_FLOAT_BISECT_MAX = 12
+
+
 def _speed(pump: PumpCurve, q, H, lo: float, hi: float, tol: float = 0.0):
     """Speed ratio r in [lo, hi] with r² H(q/r) = H for each element; returns r and flags
-    (below: even ``lo`` makes more head; above: ``hi`` cannot make it)."""
+    (below: even ``lo`` makes more head; above: ``hi`` cannot make it).
+
+    Method: affinity laws (H ∝ n², Q ∝ n) and bisection on [lo, hi] (52 halvings: the
+    bracket's width over 2⁵², i.e. to the last bits of r); a few elements are solved one
+    by one in floats, many at once with numpy — the same operations either way.
+    """
     h = pump.fits["head"].value
 
     def g(r):
@@ -286,7 +297,31 @@ def _speed(pump: PumpCurve, q, H, lo: float, hi: float, tol: float = 0.0):
 
     g_lo, g_hi = g(np.full(q.shape, lo)), g(np.full(q.shape, hi))
     below, above = g_lo > tol, g_hi < -tol
-    r = _bisect(g, lo, hi, q.shape)
+    if q.size <= _FLOAT_BISECT_MAX:
+        off, scl, c, _ = pump.fits["head"]._horner_coefs
+        c0, rest = c[0], c[1:]
+        out = []
+        for qi, Hi, bi, ai in zip(q.reshape(-1).tolist(), np.broadcast_to(
+                H, q.shape).reshape(-1).tolist(), below.reshape(-1).tolist(),
+                above.reshape(-1).tolist(), strict=True):
+            if bi or ai:  # replaced by the end of the range below
+                out.append(lo if bi else hi)
+                continue
+            a, b = lo, hi
+            for _ in range(52):  # _bisect, with g(m) = m·m·h(q/m) − H by Horner inline
+                m = 0.5 * (a + b)
+                x = off + scl * (qi / m)
+                y = c0 + x * 0.0
+                for ci in rest:
+                    y = ci + y * x
+                if m * m * y - Hi > 0:
+                    b = m
+                else:
+                    a = m
+            out.append(0.5 * (a + b))
+        r = np.array(out, dtype=float).reshape(q.shape)
+    else:
+        r = _bisect(g, lo, hi, q.shape)
     r = np.where(below, lo, np.where(above, hi, r))
     return r, below, above
 
@@ -315,13 +350,16 @@ def _crossings(Q, F, margin, H, kk, exact=None, tol=0.0, q_top=None):
     zero = has & first & (margin(q0, h0, kk) < -tol)
     out[zero] = 0.0
     todo = has & ~zero
-    if todo.any():
-        a, b, ha, hb, kt = q0[todo], q1[todo], h0[todo], h1[todo], kk[todo]
+    # rows bracketed between two grid flows are solved by Brent's method on ``exact`` when
+    # given; bisection is needed only for the others (the same numbers, without the work)
+    bis = todo if exact is None else todo & first
+    if bis.any():
+        a, b, ha, hb, kt = q0[bis], q1[bis], h0[bis], h1[bis], kk[bis]
 
         def fun(q):  # the margin falls with flow: bisect on its negative
             return -margin(q, ha + (hb - ha) * (q - a) / (b - a), kt)
 
-        out[todo] = _bisect(fun, a, b, a.shape, n=50)
+        out[bis] = _bisect(fun, a, b, a.shape, n=50)
     if exact is not None:
         from scipy.optimize import brentq
         for i in np.flatnonzero(todo & ~first):
@@ -339,10 +377,11 @@ def _crossings(Q, F, margin, H, kk, exact=None, tol=0.0, q_top=None):
 
 
 def _margin_fn(margin, k, fn):
-    """Scalar capacity margin of k pumps at one flow with an exact head function."""
+    """Scalar capacity margin of k pumps at one flow with an exact head function:
+    ``margin(k, q, H)`` in floats, H the first value of ``fn`` at the one-flow array [q]."""
     def f(q):
-        hv = np.asarray(fn(np.array([q])), dtype=float).reshape(-1)[:1]
-        return float(margin(k, np.array([q]), hv)[0])
+        hv = float(np.asarray(fn(np.array([q], dtype=float)), dtype=float).reshape(-1)[0])
+        return margin(k, float(q), hv)
     return f
 
 
@@ -433,7 +472,8 @@ def staging_sweep(pump: PumpCurve, n_duty: int, Q, H_req, *, strategy: str = "al
                   rule: StagingRule | None = None, speed: SpeedRange | None = None,
                   rho: float, motor_efficiency: float | None = None,
                   drive_rating: float | None = None, labels: Sequence[str] | None = None,
-                  exact: Sequence[Callable] | None = None) -> StagingResult:
+                  exact: Sequence[Callable] | None = None,
+                  _row_starts: list | None = None) -> StagingResult:
     """Pumps running and their speed at each flow, for identical duty pumps in parallel.
 
     Method: affinity laws (Q ∝ n, H ∝ n², P ∝ n³, efficiency kept along the affinity
@@ -527,6 +567,7 @@ def staging_sweep(pump: PumpCurve, n_duty: int, Q, H_req, *, strategy: str = "al
     r_hi = 1.0 if strategy == "fixed" else speed.max_ratio
     r_lo = speed.min_ratio
     h = pump.fits["head"].value
+    hf = pump.fits["head"].value_float
     q_end = pump.q_end
     tol = 1e-9 * pump.shutoff_head  # head tolerance of 'meets the required head' [m]
     if drive_rating is None or motor_efficiency is None:
@@ -553,11 +594,21 @@ def staging_sweep(pump: PumpCurve, n_duty: int, Q, H_req, *, strategy: str = "al
         qe = Qv / (k * r_hi)
         return np.where(qe <= q_end, r_hi * r_hi * h(qe) - Hv, -1.0)
 
+    def capacity_margin_float(k, q, Hv):  # the same operations on one flow, in floats
+        if strategy == "one_vfd":
+            qf = pump.flow_at_head_float(Hv) if k > 1 else 0.0
+            qv = q - float(k - 1) * qf
+            if qv <= r_hi * q_end:
+                return r_hi * r_hi * hf((qv if qv > 0.0 else 0.0) / r_hi) - Hv
+            return -1.0
+        qe = q / (float(k) * r_hi)
+        return r_hi * r_hi * hf(qe) - Hv if qe <= q_end else -1.0
+
     # every (pumps running, condition) pair as one row: k = 1..n over the conditions
     kk = np.repeat(np.arange(1, n + 1, dtype=float), nc)
     Hk = np.tile(H, (n, 1))
     Fk = capacity_margin(kk[:, None], Q[None, :], Hk)
-    ex = None if exact is None else [_margin_fn(capacity_margin, int(k), fn)
+    ex = None if exact is None else [_margin_fn(capacity_margin_float, int(k), fn)
                                      for k in range(1, n + 1) for fn in exact]
     cap = _crossings(Q, Fk, lambda q, hv, k: capacity_margin(k, q, hv), Hk, kk, ex, tol,
                      q_top=kk * max(r_hi, 1.0) * q_end * 1.001)
@@ -624,6 +675,8 @@ def staging_sweep(pump: PumpCurve, n_duty: int, Q, H_req, *, strategy: str = "al
     findings: list[Finding] = []
     subj = f"{n} × pump '{pump.name}' ({strategy})"
     for c in range(nc):
+        if _row_starts is not None:  # where each condition's findings begin (for a caller
+            _row_starts.append(len(findings))  # that splits a batch of conditions)
         where = f"{subj} at {labels[c]}"
         if short[c].any():
             findings.append(Finding(
@@ -932,3 +985,102 @@ def compare_strategies(pump: PumpCurve, n_duty: int, steps, head: Callable,
     rows = tuple(profile_energy(pump, n_duty, steps, head, strategy=s, **kw) for s in strategies)
     ref = rows[0].total_kWh
     return EnergyComparison(rows, {r.strategy: ref - r.total_kWh for r in rows})
+
+
+def compare_strategies_band(pump: PumpCurve, n_duty: int, steps, heads: Sequence[Callable],
+                            strategies=("fixed", "one_vfd", "all_vfd"), **kw) -> list:
+    """:func:`compare_strategies` for several required-head curves (e.g. every condition of
+    a system band), one :func:`staging_sweep` per strategy over all of them.
+
+    The same method and the same numbers as calling :func:`compare_strategies` once per
+    curve (each condition is a row of the sweep, solved on its own: speed ratios by
+    bisection, stage-up flows by Brent's method on its exact curve) — to rounding: the
+    Newton polish of a pump's flow at a head runs until every head of one call has
+    settled, so a row may take one more step than alone (last-bit differences). Where
+    any curve is refused, every curve is computed on its own so each gets its own answer
+    or refusal.
+
+    Parameters
+    ----------
+    pump : PumpCurve
+        One duty pump [-]
+    n_duty : int
+        Duty pumps that may run [-]
+    steps : sequence of (float, float)
+        Load profile, (flow, hours per year) pairs [m³/s, h]
+    heads : sequence of callable
+        Required head over flows [m³/s] -> [m], one per curve [-]
+    strategies : sequence of str
+        Keys of :data:`STRATEGIES`, the first the reference [-]
+    kw : dict
+        Passed to :func:`staging_sweep` [-]
+
+    Returns
+    -------
+    list
+        Per curve, its :class:`EnergyComparison`, or the :class:`~kit.errors.HeadlineError`
+        that :func:`compare_strategies` raises for it.
+
+    Examples
+    --------
+    >>> from kit.core.pump import PumpCurve
+    >>> p = PumpCurve([0, 0.01, 0.02, 0.03], [40.0, 38.0, 32.0, 22.0], speed_rpm=2900,
+    ...               diameter=0.2, efficiency=[0.0, 0.55, 0.72, 0.68])
+    >>> steps = [(0.01, 4000.0), (0.03, 2000.0)]
+    >>> a, b = compare_strategies_band(p, 2, steps, [lambda q: 20.0 + 10000.0 * q**2,
+    ...                                              lambda q: 24.0 + 10000.0 * q**2], rho=998.0)
+    >>> a.saving_kWh == compare_strategies(p, 2, steps, lambda q: 20.0 + 10000.0 * q**2,
+    ...                                    rho=998.0).saving_kWh
+    True
+    """
+    heads = list(heads)
+    try:
+        return _compare_batched(pump, n_duty, steps, heads, tuple(strategies), kw)
+    except HeadlineError:
+        pass
+    out: list = []
+    for head in heads:
+        try:
+            out.append(compare_strategies(pump, n_duty, steps, head, strategies, **kw))
+        except HeadlineError as exc:
+            out.append(exc)
+    return out
+
+
+def _compare_batched(pump, n_duty, steps, heads, strategies, kw) -> list:
+    """:func:`compare_strategies_band` in one sweep per strategy (refusals raise)."""
+    if not strategies:
+        raise InputError("strategies", "()", f"must name at least one of {list(STRATEGIES)}")
+    if not heads:
+        return []
+    if "labels" in kw or "exact" in kw:
+        raise InputError("keywords", sorted(kw), "labels and exact are set per curve here")
+    Q, t = load_profile(steps)
+    rows_H = [np.asarray(h(Q), dtype=float) for h in heads]
+    for H in rows_H:
+        if H.shape != Q.shape:  # let the curve-by-curve path give its own refusal
+            raise InputError("required heads", f"shape {H.shape}", "one head per flow")
+    H = np.stack(rows_H)
+    nc = len(heads)
+    per_curve: list = [[] for _ in range(nc)]
+    for strategy in strategies:
+        starts: list = []
+        res = staging_sweep(pump, n_duty, Q, H, strategy=strategy, exact=heads,
+                            labels=("condition 1",) * nc, _row_starts=starts, **kw)
+        ends = starts[1:] + [len(res.findings)]
+        for c in range(nc):
+            P = res.input_power[c]
+            if res.shortfall[c].any():
+                E = np.where(res.shortfall[c], np.nan, P * t / 1e3)
+            else:
+                E = P * t / 1e3
+            per_curve[c].append(EnergyRow(
+                strategy, Q.copy(), t.copy(), res.count[c], res.speed_ratio[c],
+                res.shaft_power[c], P, E, float(E.sum()),
+                tuple(res.findings[starts[c]:ends[c]])))
+    out = []
+    for rows in per_curve:
+        ref = rows[0].total_kWh
+        out.append(EnergyComparison(tuple(rows), {r.strategy: ref - r.total_kWh
+                                                  for r in rows}))
+    return out

@@ -222,14 +222,29 @@ def viscous_pumps(system, pumps, duties):
 
 def _head_fn(cv, system, cond):
     """System head over flows: the pump study's spline within its grid (exact to ~1e-9 m),
-    the exact curve beyond it (a set can pass more than any one candidate)."""
-    q_top = float(cv.Q[-1])
+    the exact curve beyond it (a set can pass more than any one candidate).
 
-    def head(q):
-        qa = np.asarray(q, dtype=float)
+    Root finders call it at one flow at a time, often at the same flows (the ends of their
+    brackets, one strategy after another): the head at one flow is remembered for the life
+    of this function (one study), keyed on the flow's value — the system and condition are
+    fixed for that life, so a remembered head is the head."""
+    q_top = float(cv.Q[-1])
+    memo: dict = {}
+
+    def compute(qa):
         if qa.size and float(np.max(qa)) <= q_top:
             return cv.head(qa)
         return system.curve(qa, cond)
+
+    def head(q):
+        qa = np.asarray(q, dtype=float)
+        if qa.size != 1:
+            return compute(qa)
+        key = (qa.shape, float(qa.reshape(-1)[0]))
+        hit = memo.get(key)
+        if hit is None:
+            hit = memo[key] = np.array(compute(qa), dtype=float)
+        return hit.copy()
 
     return head
 
@@ -452,7 +467,7 @@ def duties_study(system, pumps, band, q_req, recommended, duties, viscous=(),
 def _staging(d, system, band, q_req, unit, rho, heads):
     from kit.core.staging import (
         StagingRule,
-        compare_strategies,
+        compare_strategies_band,
         required_heads,
         staging_sweep,
     )
@@ -506,12 +521,15 @@ def _staging(d, system, band, q_req, unit, rho, heads):
     q_ref = q_req if q_req is not None else max(q for q, _ in duties.profile)
     at_ref = [float(np.asarray(h(np.array([q_ref]))).reshape(-1)[0]) for h in heads]
     d.reference = int(np.argmax(at_ref))
+    fns = [control.head if control is not None else heads[i] for i in range(len(conds))]
+    # every condition in one sweep per strategy: the numbers of compare_strategies per
+    # condition, each refusal kept with its condition
+    compared = compare_strategies_band(unit, n, duties.profile, fns, rule=rule, speed=d.speed,
+                                       rho=rho)
     for i, c in enumerate(conds):
-        fn = control.head if control is not None else heads[i]
-        try:
-            cmp = compare_strategies(unit, n, duties.profile, fn, rule=rule, speed=d.speed,
-                                     rho=rho)
-        except HeadlineError as exc:
+        cmp = compared[i]
+        if isinstance(cmp, HeadlineError):
+            exc = cmp
             if i == d.reference:
                 d.notes.append(f"energy not compared: {exc}")
                 d.findings.append(Finding(Severity.CHECK, f"load profile at {c.label}",
