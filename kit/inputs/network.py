@@ -338,7 +338,8 @@ def inputs(sc) -> NetworkInputs:
     """The typed inputs of a ``network`` scenario (built once, cached on it).
 
     The document is checked against the schema again (a document edited in memory is never
-    trusted), then mapped to core objects; the design network is built once so that a
+    trusted; one that :func:`with_doc` has just checked is not checked twice), then mapped
+    to core objects; the design network is built once so that a
     network the core refuses (a pipe shorter than the rise of its ends, nodes with no path to
     a fixed head) is refused here, naming the key.
     """
@@ -352,7 +353,8 @@ def inputs(sc) -> NetworkInputs:
         raise ScenarioError("kind", f"must be {KIND!r} for a network study, not "
                             f"{doc.get('kind')!r}")
     p_baro = build_site(doc)
-    check(doc, ROOT, None, p_baro)
+    if not sc._built.pop("checked", False):   # with_doc has just checked this document
+        check(doc, ROOT, None, p_baro)
     liquid = build_liquid(doc)
     T_min, T_max = build_temperatures(doc)
     positions: dict = {"node": {}, "boundary": {}, "link": {}}
@@ -451,4 +453,6 @@ def with_doc(sc, doc: dict):
     from kit.scenario import Scenario
 
     check(doc, ROOT, sc.source, build_site(doc))
-    return Scenario(doc, sc.source, text=sc.text)
+    out = Scenario(doc, sc.source, text=sc.text)
+    out._built["checked"] = True     # inputs() need not check it again (the mark is used once)
+    return out

@@ -67,7 +67,7 @@ __all__ = ["NetworkApp", "CAUTION_TOPICS", "STUDY_DELAY", "design_solution", "cu
            "pump_of"]
 
 #: Seconds between an edit's schematic and the start of its study, in a kernel.
-STUDY_DELAY = 0.05
+STUDY_DELAY = 0.1
 
 #: Caution topics the findings view shows.
 CAUTION_TOPICS = ("pressure", "water_hammer", "vacuum", "cavitation", "pump")
@@ -339,7 +339,9 @@ class NetworkApp(widgets.VBox):
     def edited_scenario(self):
         """The working scenario with every input as it stands, checked against the schema;
         :class:`~kit.panels.base.InvalidInput` while an input shows its own error."""
-        doc = copy.deepcopy(self.scenario.doc)
+        # the node and link rows come from their tables (copied there), the rest from here
+        doc = {k: (v if k in ("node", "link") else copy.deepcopy(v))
+               for k, v in self.scenario.doc.items()}
         for f in (self.t_min, self.t_max, *self.boundary_fields.values()):
             if not f.valid:
                 raise InvalidInput(f.error)
