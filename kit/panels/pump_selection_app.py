@@ -56,7 +56,6 @@ import numpy as np
 from kit import units
 from kit.core.findings import Severity
 from kit.core.operating import BEP_REGIONS
-from kit.core.pump import PumpCurve, PumpSet
 from kit.errors import InputError
 from kit.inputs import pump_selection as pump_inputs
 from kit.panels.base import (
@@ -217,21 +216,7 @@ class _Quick:
     preview: object
 
 
-def _pump_key(p):
-    """What defines a pump curve or set, as a hashable tuple (None: not known here, so
-    never taken from the cache)."""
-    members = getattr(p, "pumps", None)
-    if isinstance(p, PumpSet):
-        keys = tuple(_pump_key(m) for m in members)
-        return None if None in keys else ("set", p.name, p.arrangement, keys)
-    if not isinstance(p, PumpCurve):
-        return None
-    arrays = tuple(None if a is None else np.asarray(a, dtype=float).tobytes()
-                   for a in (p.flow, p.head_points, p.efficiency_points, p.npshr_points,
-                             p.power_points))
-    return ("curve", p.name, arrays, p.speed_rpm, p.diameter, p.datasheet_speed_rpm,
-            p.datasheet_diameter, p.test_density, p.head_rise_tolerance,
-            tuple(sorted(p.degrees.items())), repr(p.scaling_findings))
+_pump_key = ps.pump_key
 
 
 def _study_key(scenario, pumps):

@@ -53,7 +53,7 @@ from kit.studies.integrity import METHODS as INTEGRITY_METHODS
 
 __all__ = [
     "ARRANGEMENTS", "PUMP_KEYS", "GRID_POINTS", "POLISH_TOL", "PumpStudy", "build_pumps",
-    "build_pump", "study", "preview", "PumpPreview", "compute", "control_condition",
+    "build_pump", "study", "preview", "PumpPreview", "pump_key", "compute", "control_condition",
     "findings_summary", "results_of",
 ]
 
@@ -263,6 +263,7 @@ class _SystemPart:
     def __init__(self, system):
         self.system = system
         self.grids: dict = {}
+        self.points: dict = {}     # operating points per pump (see _points)
         self.heads = {c.label: _Heads(system, c) for c in system.conditions()}
 
     def band(self, q_top: float):
@@ -306,23 +307,68 @@ def _system_part(sc, system) -> _SystemPart:
     return part
 
 
-def _points(system, pumps, band, curves, application) -> tuple[dict, dict]:
+def pump_key(p):
+    """What defines a pump curve or set, as a hashable tuple (None: a kind not keyed here, so
+    never taken from a cache): the datasheet arrays, speeds, diameters, test density, head
+    tolerance, fit degrees and scaling findings; a set's arrangement and members.
+
+    >>> from kit.core.pump import PumpCurve
+    >>> a = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.2)
+    >>> b = PumpCurve([0, 0.01, 0.02], [30.0, 28.0, 22.0], speed_rpm=1450, diameter=0.2)
+    >>> pump_key(a) == pump_key(b), pump_key(a) == pump_key(a.at_speed(1400))
+    (True, False)
+    """
+    from kit.core.pump import PumpCurve, PumpSet
+
+    members = getattr(p, "pumps", None)
+    if isinstance(p, PumpSet):
+        keys = tuple(pump_key(m) for m in members)
+        return None if None in keys else ("set", p.name, p.arrangement, keys)
+    if not isinstance(p, PumpCurve):
+        return None
+    arrays = tuple(None if a is None else np.asarray(a, dtype=float).tobytes()
+                   for a in (p.flow, p.head_points, p.efficiency_points, p.npshr_points,
+                             p.power_points))
+    return ("curve", p.name, arrays, p.speed_rpm, p.diameter, p.datasheet_speed_rpm,
+            p.datasheet_diameter, p.test_density, p.head_rise_tolerance,
+            tuple(sorted(p.degrees.items())), repr(p.scaling_findings))
+
+
+#: Pumps' operating points kept per system part (pump key, grid top, application).
+_POINTS_MEMO = 48
+
+
+def _points(system, pumps, band, curves, application, memo=None) -> tuple[dict, dict]:
     """Operating points of every pump over the band's conditions, and the errors.
 
     Per condition: every pump's point on the splined curves, then one exact evaluation of the
     system curve and NPSHa at those flows (one vectorized call for all pumps); where the spline
     misses the exact values by more than :data:`POLISH_TOL`, the point is found again on the
-    spline shifted by the difference there.
+    spline shifted by the difference there. ``memo`` (a dict kept with the system's band):
+    the points of a pump found before on this band are taken from it (an edit of one
+    candidate leaves the others' points as they were).
     """
     from kit.core.operating import operating_point
 
     points = {p.name: [None] * len(band.conditions) for p in pumps}
     errors = {p.name: [] for p in pumps}
+    keys = {}
+    todo = list(pumps)
+    if memo is not None:
+        todo = []
+        for p in pumps:
+            k = pump_key(p)
+            hit = memo.get((k, float(band.Q[-1]), application)) if k is not None else None
+            if hit is None:
+                todo.append(p)
+                keys[p.name] = k
+            else:
+                points[p.name], errors[p.name] = list(hit[0]), list(hit[1])
     for i, cond in enumerate(band.conditions):
         rho = system.state(cond.T).rho
         cv = curves[i]
         first = {}
-        for pump in pumps:
+        for pump in todo:
             if pump.q_end > band.Q[-1] * (1 + 1e-12):
                 raise InputError("band grid", band.Q[-1], "must reach every pump's last "
                                  "datasheet flow", "m³/s")
@@ -349,6 +395,13 @@ def _points(system, pumps, band, curves, application) -> tuple[dict, dict]:
                 pump, lambda q, _d=dh, _c=cv: _c.head(q, _d), rho=rho,
                 npsha=lambda q, _d=dn, _c=cv: _c.npsha(q) + _d, label=cond.label,
                 npsh_application=application)
+    if memo is not None:
+        for p in todo:
+            if keys.get(p.name) is not None:
+                if len(memo) >= _POINTS_MEMO:
+                    memo.clear()
+                memo[(keys[p.name], float(band.Q[-1]), application)] = (
+                    tuple(points[p.name]), tuple(errors[p.name]))
     return points, errors
 
 
@@ -394,7 +447,7 @@ def preview(sc, pumps=None) -> PumpPreview:
     pumps, viscous, water = viscous_pumps(system, pumps, inp.duties)
     q_top = max(p.q_end for p in pumps)
     band, curves, npsha_grid = part.band(q_top)
-    points, errors = _points(system, pumps, band, curves, inp.npsh_application)
+    points, errors = _points(system, pumps, band, curves, inp.npsh_application, part.points)
     return PumpPreview(system, band, pumps, points, errors, inp.required_flow, npsha_grid,
                        viscous, water, curves, q_top)
 
@@ -445,7 +498,7 @@ def study(sc, pumps=None, system=None, preview=None) -> PumpStudy:
         pumps, viscous, water = viscous_pumps(system, pumps, inp.duties)
         q_top = max(p.q_end for p in pumps)
         band, curves, npsha_grid = part.band(q_top)
-        points, errors = _points(system, pumps, band, curves, application)
+        points, errors = _points(system, pumps, band, curves, application, part.points)
     Q = band.Q
     motors, energy, verdicts, findings = {}, {}, {}, {}
     for pump in pumps:
