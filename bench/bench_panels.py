@@ -38,8 +38,10 @@ def run(report, timeit, repeat):
 
     def change(i, naive=False):
         if naive:
+            from kit.core import sizing
+
             ls.candidate_pipes.cache_clear()
-            ls._bore_arrays.cache_clear()
+            sizing._route_line.cache_clear()
             fittings._call.cache_clear()
             app._cache.clear()
             app.profile_chart.view.data = []
