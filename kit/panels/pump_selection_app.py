@@ -861,7 +861,9 @@ class PumpSelectionApp(widgets.VBox):
         """A copy of the working scenario: the original with the liquid temperatures and
         every pump's datasheet points as accepted from the panels (strings with units, as
         typed). Raises the kit's error while a temperature or the pump being edited is
-        invalid (the working copy then still holds the last accepted values)."""
+        invalid (the working copy then still holds the last accepted values). An edit whose
+        study is pending is finished first (a refusal found by the study is not saved)."""
+        self._finish()
         for f in (self.t_min, self.t_max, *self.system_inputs.fields):
             if not f.valid or (f.value is None and not f.optional):
                 raise InputError(f.field, f.text, f"cannot be saved: {f.error or 'not valid'}")

@@ -417,3 +417,21 @@ def test_a_study_refused_after_the_preview_puts_the_last_inputs_back(app, kernel
     assert "must be refused here" in app.message.value
     assert json_of(app.plot.data) == chart0
     assert json_of(app.scenario.doc["pumps"][0]["head"]) == head0
+
+
+def test_saving_finishes_a_pending_edit_first(app, kernel, monkeypatch):
+    """The save row writes what the study accepted: a pending edit is finished first, and
+    one its study refuses is not saved."""
+    from kit.errors import InputError
+
+    head0 = json_of(app.scenario.doc["pumps"][0]["head"])
+    app.editor.set_point(3, head="74")
+    assert app.pending
+
+    def refuse(*a, **k):
+        raise InputError("test field", 1.0, "must be refused here")
+
+    monkeypatch.setattr(ps, "study", refuse)
+    saved = app.to_scenario()
+    assert not app.pending
+    assert json_of(saved.doc["pumps"][0]["head"]) == head0
