@@ -42,7 +42,7 @@ from kit.errors import HeadlineError, OutOfRangeError, ScenarioError
 __all__ = ["Panel", "HtmlView", "SYSTEMS", "error_html", "check_system", "KIT_ERRORS",
            "InvalidInput", "Refusal", "Refusals", "field_value", "panel_value", "stale_html",
            "section_heading", "display_message", "locate_field", "mark_field", "unmark_field",
-           "shown_value", "BASE_CSS", "STALE_TEXT", "style_widget", "kernel_loop"]
+           "shown_value", "BASE_CSS", "STALE_TEXT", "style_widget", "kernel_loop", "Later"]
 
 #: What the banner over stale results says.
 STALE_TEXT = "results are for the last accepted inputs"
@@ -564,3 +564,49 @@ def kernel_loop():
         return asyncio.get_running_loop()
     except RuntimeError:
         return None
+
+
+class Later:
+    """One piece of an app's work left to the kernel's event loop (:func:`kernel_loop`):
+    :meth:`start` runs ``fn`` ``delay`` seconds from now, replacing any run still waiting;
+    :meth:`cancel` drops it. An exception in ``fn`` (a bug) is shown in ``refusals``' banner
+    before it propagates to the kernel's log.
+
+    >>> class Loop:                      # a stand-in that keeps what it is given
+    ...     def call_later(self, delay, fn):
+    ...         self.fn = fn
+    ...         return type("Handle", (), {"cancel": lambda self: None})()
+    >>> loop, seen = Loop(), []
+    >>> later = Later(lambda: seen.append(1))
+    >>> later.start(loop, 0.1)
+    >>> later.waiting, seen
+    (True, [])
+    >>> loop.fn(); later.waiting, seen
+    (False, [1])
+    """
+
+    def __init__(self, fn, refusals=None):
+        self.fn, self.refusals, self.handle = fn, refusals, None
+
+    @property
+    def waiting(self) -> bool:
+        return self.handle is not None
+
+    def start(self, loop, delay: float) -> None:
+        self.cancel()
+        self.handle = loop.call_later(delay, self._run)
+
+    def cancel(self) -> None:
+        if self.handle is not None:
+            self.handle.cancel()
+            self.handle = None
+
+    def _run(self) -> None:
+        self.handle = None
+        try:
+            self.fn()
+        except Exception as exc:
+            if self.refusals is not None:
+                self.refusals.refuse(f"internal error, please report it: "
+                                     f"{type(exc).__name__}: {exc}")
+            raise

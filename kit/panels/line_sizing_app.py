@@ -66,6 +66,7 @@ from kit.inputs import line_sizing as ls_inputs
 from kit.inputs.kinds import checked
 from kit.panels.base import (
     KIT_ERRORS,
+    Later,
     Refusal,
     Refusals,
     check_system,
@@ -329,7 +330,7 @@ class LineSizingApp(widgets.VBox):
         self.erosional_C = inp.erosional_C
         self._scenario_duty = inp.duty   # the duty as the scenario set it (with its criteria)
         self.study: ls.SizingStudy | None = None
-        self._rest_timer = None    # the render after the bore chart, waiting (kernel)
+        self._rest = Later(self.settle)    # the render after the bore chart (kernel)
         self.shown: int | None = None
         self._pinned: str | None = None   # nominal size the user chose for the profile
         self._cache: dict = {}
@@ -434,6 +435,7 @@ class LineSizingApp(widgets.VBox):
         self.message = self.refusals.banner
         self._last_edited = None
         self.switch = DisplaySwitch([], system=system)
+        self._rest.refusals = self.refusals   # a bug in the deferred render is shown there
         self.save_row = SaveRow(self.to_scenario, default_save_path(
             self.source_scenario if self.source_scenario is not None else None))
         super().__init__(self._layout())
@@ -789,21 +791,17 @@ class LineSizingApp(widgets.VBox):
         if loop is None:
             self.settle()
             return
-        if self._rest_timer is not None:
-            self._rest_timer.cancel()
-        self._rest_timer = loop.call_later(RENDER_DELAY, self.settle)
+        self._rest.start(loop, RENDER_DELAY)
 
     @property
     def settled(self) -> bool:
         """False while the tables, profile, findings and status wait for the loop."""
-        return self._rest_timer is None
+        return not self._rest.waiting
 
     def settle(self) -> None:
         """Render what follows the bore chart (the candidate table, size choice, profile,
         findings and status) from the study now, if it is waiting."""
-        if self._rest_timer is not None:
-            self._rest_timer.cancel()
-            self._rest_timer = None
+        self._rest.cancel()
         st = self.study
         rows = ls.candidate_rows(st)
         label = st.inputs.duty.label + ": "

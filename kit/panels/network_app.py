@@ -49,7 +49,7 @@ from kit import units
 from kit.core.findings import Severity
 from kit.errors import InputError
 from kit.inputs import network as network_inputs
-from kit.panels.base import InvalidInput, Refusals, check_system, kernel_loop
+from kit.panels.base import InvalidInput, Later, Refusals, check_system, kernel_loop
 from kit.panels.charts import to_display
 from kit.panels.display import DisplaySwitch
 from kit.panels.fields import QuantityField
@@ -234,7 +234,6 @@ class NetworkApp(widgets.VBox):
         self.net = self.study.network
         self._busy = False
         self._pending = None
-        self._timer = None
         p_baro = float(self.study.inputs.p_baro)
         doc = self.scenario.doc
 
@@ -288,6 +287,8 @@ class NetworkApp(widgets.VBox):
                                   t.links, t.nodes, t.valves, t.balancing, self.findings,
                                   self.status), locate=self._locate,
                                  system=lambda: self.display)
+        #: the study of the last edit, left to the kernel's event loop (see _schedule)
+        self._later = Later(self._finish, self.refusals)
         self.message = self.refusals.banner
         self.switch = DisplaySwitch([], system=self.display)
         self.save_row = SaveRow(self.to_scenario, default_save_path(scenario))
@@ -400,24 +401,11 @@ class NetworkApp(widgets.VBox):
         if loop is None:
             self._finish()
             return
-        if self._timer is not None:
-            self._timer.cancel()
-        self._timer = loop.call_later(STUDY_DELAY, self._deferred)
+        self._later.start(loop, STUDY_DELAY)
 
     def _cancel(self) -> None:
         self._pending = None
-        if self._timer is not None:
-            self._timer.cancel()
-            self._timer = None
-
-    def _deferred(self) -> None:
-        self._timer = None
-        try:
-            self._finish()
-        except Exception as exc:   # a bug: shown, not lost in the kernel's log
-            self.refusals.refuse(f"internal error, please report it: {type(exc).__name__}: "
-                                 f"{exc}")
-            raise
+        self._later.cancel()
 
     @property
     def pending(self) -> bool:
@@ -429,6 +417,7 @@ class NetworkApp(widgets.VBox):
             return
         sc, inp = self._pending
         self._pending = None
+        self._later.cancel()
         full = self.refusals.attempt(lambda: self._run(sc, inp))
         if full is None:
             return

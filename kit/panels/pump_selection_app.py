@@ -61,6 +61,7 @@ from kit.inputs import pump_selection as pump_inputs
 from kit.panels.base import (
     KIT_ERRORS,
     InvalidInput,
+    Later,
     Refusal,
     Refusals,
     check_system,
@@ -280,7 +281,7 @@ class PumpSelectionApp(widgets.VBox):
         #: how many times the study was run (not taken from the cache)
         self.recomputes = 0
         self._pending = None      # an edit's study to finish (a _Quick), in a kernel
-        self._timer = None
+        self._later = Later(self._finish)   # ... from the kernel's event loop (_schedule)
         _, _, self.study, self.results = self._run(self.scenario, self.pumps)
         self._accepted = (self.scenario, self.pumps)
         self._busy = False
@@ -348,6 +349,7 @@ class PumpSelectionApp(widgets.VBox):
                                   self.control_table, self.findings, self.status,
                                   self.profile_plot, self.duties),
                                  system=lambda: self.display)
+        self._later.refusals = self.refusals    # a bug in the deferred study is shown there
         #: The banner over the results: what is refused and that the results are stale
         #: (CSS ``hl-stale-banner``, ``hl-app-message``).
         self.message = self.refusals.banner
@@ -539,24 +541,11 @@ class PumpSelectionApp(widgets.VBox):
         if loop is None:
             self._finish()
             return
-        if self._timer is not None:
-            self._timer.cancel()
-        self._timer = loop.call_later(STUDY_DELAY, self._deferred)
+        self._later.start(loop, STUDY_DELAY)
 
     def _cancel(self) -> None:
         self._pending = None
-        if self._timer is not None:
-            self._timer.cancel()
-            self._timer = None
-
-    def _deferred(self) -> None:
-        self._timer = None
-        try:
-            self._finish()
-        except Exception as exc:   # a bug: shown, not lost in the kernel's log
-            self.refusals.refuse(f"internal error, please report it: {type(exc).__name__}: "
-                                 f"{exc}")
-            raise
+        self._later.cancel()
 
     @property
     def pending(self) -> bool:
@@ -570,9 +559,7 @@ class PumpSelectionApp(widgets.VBox):
         if q is None:
             return
         self._pending = None
-        if self._timer is not None:
-            self._timer.cancel()
-            self._timer = None
+        self._later.cancel()
         out = self.refusals.attempt(
             lambda: self._run(q.scenario, q.pumps, preview=q.preview))
         if out is None:
